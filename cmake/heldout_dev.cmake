@@ -17,3 +17,11 @@ endfunction()
 
 # Python with scipy for the live reference checks (Debian's, not whatever is on PATH).
 set(HELDOUT_PYTHON "/usr/bin/python3" CACHE FILEPATH "Python interpreter with numpy and scipy")
+
+# heldout_only(list) keeps the entries of list that match HELDOUT_ONLY (all when it is empty),
+# so that one developer's work in progress does not break another's build.
+macro(heldout_only var)
+    if(NOT "${HELDOUT_ONLY}" STREQUAL "")
+        list(FILTER ${var} INCLUDE REGEX "${HELDOUT_ONLY}")
+    endif()
+endmacro()
