@@ -2,7 +2,14 @@
 //
 //   #include <heldout/heldout.hpp>
 //   double mse = heldout::evaluate(heldout::measure::mse{}, truth, prediction);
+//   for (const heldout::split& s : heldout::kfold{.folds = 10, .seed = 7}.splits(n)) { ... }
 #pragma once
 
+#include <heldout/compare.hpp>
 #include <heldout/core.hpp>
-#include <heldout/measure/mean_loss.hpp>
+#include <heldout/estimate.hpp>
+#include <heldout/loss.hpp>
+#include <heldout/measure.hpp>
+#include <heldout/plan.hpp>
+#include <heldout/report.hpp>
+#include <heldout/stream.hpp>

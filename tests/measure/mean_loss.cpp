@@ -1,4 +1,5 @@
 // Tests for heldout/measure/mean_loss.hpp: a pointwise loss averaged into an outer measure.
+#include <heldout/loss.hpp>
 #include <heldout/measure/mean_loss.hpp>
 
 #include "support/reference.hpp"
@@ -10,6 +11,7 @@
 #include <limits>
 #include <random>
 #include <span>
+#include <sstream>
 #include <vector>
 
 using heldout::evaluate;
@@ -25,6 +27,20 @@ struct log_cosh {
         const double t = std::tanh(f - y);
         return 1 - t * t;
     }
+};
+// A user's own binary loss: the squared hinge, declaring 0/1 truth like the built-in ones.
+struct squared_hinge {
+    static constexpr std::string_view name = "squared hinge";
+    static constexpr heldout::truth_kind truth = heldout::truth_kind::binary;
+    double value(double y, double f) const {
+        const double m = 1 - (2 * y - 1) * f;
+        return m > 0 ? m * m : 0.0;
+    }
+    double derivative(double y, double f) const {
+        const double s = 2 * y - 1, m = 1 - s * f;
+        return m > 0 ? -2 * s * m : 0.0;
+    }
+    double second_derivative(double y, double f) const { return 1 - (2 * y - 1) * f > 0 ? 2.0 : 0.0; }
 };
 } // namespace
 
@@ -139,5 +155,100 @@ TEST_SUITE("measure/mean_loss") {
         const std::vector<double> w0{0, 0, 0};
         CHECK_THROWS_WITH_AS(evaluate(mse{}, y, ok, w0), "measure MSE: undefined: total weight is zero",
                              heldout::undefined_error);
+    }
+    TEST_CASE("live reference: pinball, Huber, Poisson, logistic, hinge and 0-1 through mean_loss") {
+        using heldout::measure::mean_loss;
+        namespace loss = heldout::loss;
+        heldout_test::reference_table ref("ref_mean_loss");
+        for (int c = 0; c < 5; ++c) {
+            const std::string k = "case" + std::to_string(c) + ".";
+            const auto y = ref.get(k + "truth");
+            const auto f = ref.get(k + "prediction");
+            const auto w = ref.get(k + "weights");
+            for (double tau : {0.1, 0.5, 0.9}) {
+                std::ostringstream name;
+                name << tau;
+                const mean_loss<loss::pinball> m{{tau}};
+                // numpy.maximum(tau e, (tau - 1) e), numpy.average (ref_mean_loss.py)
+                CHECK(heldout_test::close(evaluate(m, y, f), ref.scalar(k + "pinball" + name.str())));
+                CHECK(heldout_test::close(evaluate(m, y, f, w), ref.scalar(k + "wpinball" + name.str())));
+            }
+            const mean_loss<loss::huber> hub{{0.7}}; // numpy.where form of Huber (1964)
+            CHECK(heldout_test::close(evaluate(hub, y, f), ref.scalar(k + "huber")));
+            CHECK(heldout_test::close(evaluate(hub, y, f, w), ref.scalar(k + "whuber")));
+            const auto counts = ref.get(k + "counts"), eta = ref.get(k + "logmean");
+            // 2 [xlogy(y, y) - xlogy(y, mu) - (y - mu)] with scipy.special.xlogy
+            CHECK(heldout_test::close(evaluate(mean_loss<loss::poisson>{}, counts, eta), ref.scalar(k + "poisson")));
+            CHECK(
+                heldout_test::close(evaluate(mean_loss<loss::poisson>{}, counts, eta, w), ref.scalar(k + "wpoisson")));
+            const auto label = ref.get_as<int>(k + "label");
+            const auto logit = ref.get(k + "logit");
+            // -(y log_expit(f) + (1 - y) log_expit(-f)) with scipy.special.log_expit
+            CHECK(heldout_test::close(evaluate(mean_loss<loss::logistic>{}, label, logit), ref.scalar(k + "logistic")));
+            CHECK(heldout_test::close(evaluate(mean_loss<loss::logistic>{}, label, logit, w),
+                                      ref.scalar(k + "wlogistic")));
+            CHECK(heldout_test::close(evaluate(mean_loss<loss::hinge>{}, label, logit), ref.scalar(k + "hinge")));
+            CHECK(heldout_test::close(evaluate(mean_loss<loss::hinge>{}, label, logit, w), ref.scalar(k + "whinge")));
+            CHECK(heldout_test::close(evaluate(mean_loss<loss::zero_one>{}, label, logit), ref.scalar(k + "zero_one")));
+            CHECK(heldout_test::close(evaluate(mean_loss<loss::zero_one>{}, label, logit, w),
+                                      ref.scalar(k + "wzero_one")));
+        }
+    }
+    TEST_CASE("pinball through mean_loss: methods.md Appendix A check values") {
+        // methods.md Appendix A, Check [SELF] (a self-written implementation of Koenker &
+        // Bassett 1978): errors e = 0.5, -0.5, 0.5, -0.5, 1.0. tau = 0.1: (0.05 + 0.45 + 0.05 +
+        // 0.45 + 0.1) / 5 = 0.22; tau = 0.9: (0.45 + 0.05 + 0.45 + 0.05 + 0.9) / 5 = 0.38.
+        using M = heldout::measure::mean_loss<heldout::loss::pinball>;
+        const std::vector<double> y{1.5, 2.0, 3.5, 4.0, 6.0};
+        const std::vector<double> f{1.0, 2.5, 3.0, 4.5, 5.0};
+        CHECK(evaluate(M{{0.1}}, y, f) == doctest::Approx(0.22).epsilon(1e-15));
+        CHECK(evaluate(M{{0.5}}, y, f) == doctest::Approx(0.30).epsilon(1e-15));
+        CHECK(evaluate(M{{0.9}}, y, f) == doctest::Approx(0.38).epsilon(1e-15));
+    }
+    TEST_CASE("a user's own binary loss gets the 0/1 truth checks") {
+        using M = heldout::measure::mean_loss<squared_hinge>;
+        static_assert(heldout::differentiable_loss<squared_hinge>);
+        CHECK(M::kind == heldout::prediction_kind::score);
+        const std::vector<int> y{1, 0};
+        const std::vector<double> f{0.5, 0.5}; // margins 0.5 and -0.5: (0.25 + 2.25) / 2
+        CHECK(evaluate(M{}, y, f) == 1.25);
+        const std::vector<int> bad{1, 3};
+        CHECK_THROWS_WITH_AS(evaluate(M{}, bad, f),
+                             "measure mean squared hinge loss: argument 'truth': label 3 outside the classes 0..1 at "
+                             "index 1",
+                             heldout::input_error);
+    }
+    TEST_CASE("the baseline and AVX2 clones of the pass give bit-identical sums") {
+        std::mt19937_64 g(11);
+        std::normal_distribution<double> d;
+        std::vector<float> y(10007), f(10007);
+        for (std::size_t i = 0; i < y.size(); ++i) {
+            y[i] = static_cast<float>(d(g));
+            f[i] = static_cast<float>(d(g));
+        }
+        auto a = mse{}.accumulator(), b = mse{}.accumulator();
+        a.add_using(heldout::detail::isa::baseline, y, f);
+        b.add_using(heldout::detail::best_isa(), y, f);
+        CHECK(a.value() == b.value());
+        double sa = 0, sb = 0;
+        a.visit_state([&](double x) { sa += x; });
+        b.visit_state([&](double x) { sb += x; });
+        CHECK(sa == sb);
+    }
+    TEST_CASE("a failed batch leaves the state untouched; overflow is reported") {
+        auto acc = mse{}.accumulator();
+        const std::vector<double> y{1, 2}, f{1, 3};
+        acc.add(y, f);
+        const std::vector<double> bad{1, NAN};
+        CHECK_THROWS_AS(acc.add(y, bad), heldout::input_error);
+        CHECK(acc.value() == 0.5);
+        CHECK(acc.count() == 2);
+        const std::vector<double> big{1e200, 0}, small{-1e200, 0};
+        CHECK_THROWS_WITH_AS(acc.add(big, small),
+                             "measure MSE: argument 'prediction': loss not finite at truth 9.9999999999999997e+199, "
+                             "prediction -9.9999999999999997e+199 (overflow, or outside the loss's domain) at index 0",
+                             heldout::input_error);
+        CHECK_THROWS_WITH_AS(acc.add_one(1.0, NAN), "measure MSE: argument 'prediction': not finite (nan) at index 0",
+                             heldout::input_error);
     }
 }

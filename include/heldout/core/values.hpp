@@ -158,6 +158,26 @@ auto rows_of(const P& p) {
     }
 }
 
+namespace detail {
+// Rows [first, first + count) of a prediction: a value range or class-probability rows.
+template <class P>
+auto prediction_slice(const P& p, std::size_t first, std::size_t count) {
+    if constexpr (probability_rows<P>)
+        return rows_of(p).slice(first, count);
+    else
+        return values_of(p).subspan(first, count);
+}
+
+/// Number of predictions (rows for class-probability rows).
+template <class P>
+std::size_t prediction_rows(const P& p) {
+    if constexpr (probability_rows<P>)
+        return rows_of(p).rows;
+    else
+        return values_of(p).size();
+}
+} // namespace detail
+
 /// Scores become labels only through an explicit threshold: label 1 where score >= t.
 template <real_range R>
 std::vector<std::uint8_t> labels_at(const R& scores, double threshold) {

@@ -16,6 +16,7 @@ namespace loss {
 /// (y - f)^2.
 struct squared {
     static constexpr std::string_view name = "squared";
+    static constexpr bool propagates_non_finite = true; // a NaN or inf input gives a non-finite value
     static constexpr std::string_view measure_name = "MSE";
 
     constexpr double value(double y, double f) const noexcept {

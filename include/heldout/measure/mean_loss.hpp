@@ -4,15 +4,28 @@
 //   using heldout::measure::mean_loss;
 //   double mse = heldout::evaluate(mean_loss<heldout::loss::squared>{}, y, f);  // == measure::mse
 //   double q90 = heldout::evaluate(mean_loss<heldout::loss::pinball>{{0.9}}, y, f, w);
+//   double hub = heldout::evaluate(mean_loss<heldout::loss::huber>{{1.5}}, y, f);
 //
 // value = sum_i w_i L(y_i, f_i) / sum_i w_i, accumulated in fixed-order blocks of
-// compensated double sums (detail/sum.hpp), so the result does not depend on how the
-// data are batched beyond the last bits, and 1e8 rows lose no digits. Truth is real, or
-// 0/1 for losses that declare truth_kind::binary; predictions are floating point.
+// compensated double sums (detail/pointwise_pass.hpp: one fused, vectorised pass that
+// also validates, with a runtime AVX2 clone giving bit-identical results), so the result
+// does not depend on how the data are batched beyond the last bits, and 1e8 rows lose no
+// digits. Truth is real, or 0/1 for losses that declare truth_kind::binary; predictions
+// are floating point; every term is computed in double.
+//
+// Optional members of a loss that mean_loss uses:
+//  * `static constexpr std::string_view measure_name` — the measure's name ("MSE");
+//  * `void validate(std::string_view who) const` — checks the loss's parameters
+//    (huber's delta, pinball's tau), called when an accumulator is made;
+//  * `static constexpr bool propagates_non_finite = true` — a NaN or infinite input always
+//    gives a non-finite value, so the pass need not check inputs separately (faster);
+//  * `static constexpr std::string_view truth_domain` — named in the message when the loss
+//    is not finite on finite inputs (poisson: "y >= 0").
 #pragma once
 
 #include <heldout/core/loss.hpp>
 #include <heldout/core/measure.hpp>
+#include <heldout/detail/pointwise_pass.hpp>
 #include <heldout/detail/sum.hpp>
 #include <heldout/detail/validate.hpp>
 #include <heldout/loss/squared.hpp>
@@ -20,6 +33,7 @@
 #include <array>
 #include <cstdint>
 #include <string>
+#include <type_traits>
 
 HELDOUT_NAMESPACE_BEGIN
 namespace measure {
@@ -35,74 +49,88 @@ std::string name_of() {
     else
         return "mean " + std::string(L::name) + " loss";
 }
+
+template <class L>
+constexpr bool propagates() {
+    if constexpr (requires { L::propagates_non_finite; })
+        return L::propagates_non_finite;
+    else
+        return false;
+}
+
+/// The per-row term of mean_loss<L> for detail::pointwise_pass.
+template <class L>
+struct loss_term {
+    static constexpr bool infinite_ok = false;
+    static constexpr bool binary = loss_truth_v<L> == truth_kind::binary;
+    static constexpr bool binary_truth = binary; // 0/1 truth, checked by the pass
+    L loss;
+
+    template <class Y, class P>
+    using truth_buffer = std::conditional_t<std::is_floating_point_v<Y>, Y, double>;
+
+    template <class Y, class P>
+    HELDOUT_DETAIL_INLINE double fast(Y y, P f) const {
+        return loss.value(static_cast<double>(y), static_cast<double>(f));
+    }
+    template <class Y, class P>
+    HELDOUT_DETAIL_INLINE detail::same_width_uint<P> flag(Y y, P f) const noexcept {
+        using U = detail::same_width_uint<P>;
+        U r = 0;
+        if constexpr (!propagates<L>())
+            r = detail::flag_as<U>(detail::non_finite_flag(y)) | detail::non_finite_flag(f);
+        return r;
+    }
+    template <class Y, class P>
+    void check(std::string_view who, Y y, P f, std::size_t i) const {
+        detail::check_finite_at(who, "truth", y, i);
+        detail::check_finite_at(who, "prediction", f, i);
+        if constexpr (binary)
+            detail::check_binary_truth_at(who, y, i);
+    }
+    double exact(double y, double f) const { return loss.value(y, f); }
+    [[noreturn]] void report(std::string_view who, double y, double f, std::size_t i) const {
+        std::string problem = "loss not finite at truth " + detail::number_text(y) + ", prediction " +
+                              detail::number_text(f) + " (overflow, or outside the loss's domain";
+        if constexpr (requires { L::truth_domain; }) {
+            problem += ": ";
+            problem += L::truth_domain;
+        }
+        problem += ")";
+        detail::fail_at(who, "prediction", problem, i);
+    }
+};
 } // namespace detail_mean_loss
 
 /// Running state of mean_loss<L>: weighted loss sum, weight sum, row count.
 template <pointwise_loss L>
 class mean_loss_accumulator {
 public:
-    mean_loss_accumulator() = default;
-    explicit mean_loss_accumulator(const L& l) : loss_(l) {}
+    mean_loss_accumulator() { validate(); }
+    explicit mean_loss_accumulator(const L& l) : loss_(l) { validate(); }
 
     /// Adds a batch: truth (real, or 0/1 for binary losses) and floating-point predictions.
     template <value_range T, real_range P>
     void add(const T& truth, const P& prediction) {
-        auto [t, p] = views(truth, prediction);
-        std::array<detail::compensated_sum, 2> s{};
-        detail::blocked_sum<2>(
-            t.size(),
-            [&](std::size_t i, std::array<double, 2>& out) {
-                const double y = static_cast<double>(t[i]);
-                const double f = static_cast<double>(p[i]);
-                out[0] = loss_.value(y, f);
-                out[1] = (y - y) + (f - f); // 0 when both are finite, NaN otherwise
-            },
-            s);
-        if (!std::isfinite(s[1].value()) || !std::isfinite(s[0].value()))
-            report(t, p);
-        loss_sum_.merge(s[0]);
-        weight_sum_.add(static_cast<double>(t.size()));
-        count_ += t.size();
+        add_impl(truth, prediction, static_cast<const void*>(nullptr), 0, detail::best_isa());
     }
 
     /// Adds a weighted batch (weights finite and non-negative).
     template <value_range T, real_range P, weight_range W>
     void add(const T& truth, const P& prediction, const W& weights) {
-        auto [t, p] = views(truth, prediction);
         auto w = values_of(weights, who(), "weights");
-        detail::check_same_size(who(), "weights", t.size(), w.size());
-        detail::check_weights(who(), w);
-        std::array<detail::compensated_sum, 3> s{};
-        detail::blocked_sum<3>(
-            t.size(),
-            [&](std::size_t i, std::array<double, 3>& out) {
-                const double y = static_cast<double>(t[i]);
-                const double f = static_cast<double>(p[i]);
-                const double wi = static_cast<double>(w[i]);
-                out[0] = wi * loss_.value(y, f);
-                out[1] = wi;
-                out[2] = (y - y) + (f - f);
-            },
-            s);
-        if (!std::isfinite(s[2].value()) || !std::isfinite(s[0].value()))
-            report(t, p);
-        loss_sum_.merge(s[0]);
-        weight_sum_.merge(s[1]);
-        count_ += t.size();
+        add_impl(truth, prediction, w.data(), w.size(), detail::best_isa());
     }
 
     /// Adds one observation.
     void add_one(double y, double f, double w = 1.0) {
-        if (!std::isfinite(y))
-            detail::fail(who(), "truth", "not finite");
-        if (!std::isfinite(f))
-            detail::fail(who(), "prediction", "not finite");
-        if (!std::isfinite(w) || w < 0)
-            detail::fail(who(), "weights", "weight must be finite and non-negative");
-        if constexpr (loss_truth_v<L> == truth_kind::binary)
-            if (y != 0.0 && y != 1.0)
-                detail::fail(who(), "truth", "label " + detail::number_text(y) + " outside the classes 0..1");
-        loss_sum_.add(w * loss_.value(y, f));
+        const detail_mean_loss::loss_term<L> term{loss_};
+        term.check(who(), y, f, 0);
+        detail::check_weight_at(who(), w, 0);
+        const double v = loss_.value(y, f);
+        if (!std::isfinite(v))
+            term.report(who(), y, f, 0);
+        loss_sum_.add(w * v);
         weight_sum_.add(w);
         ++count_;
     }
@@ -132,46 +160,55 @@ public:
     double total_weight() const noexcept { return weight_sum_.value(); }
     const L& loss() const noexcept { return loss_; }
 
+    // A loss with parameters (Huber delta, pinball tau, ...) exposes them through its own
+    // visit_state; they come first, so deserialised bytes restore them.
     template <class F>
     void visit_state(F&& f) {
+        if constexpr (requires(L & l) { l.visit_state(f); })
+            f(loss_);
         loss_sum_.visit_state(f);
         weight_sum_.visit_state(f);
         f(count_);
     }
     template <class F>
     void visit_state(F&& f) const {
+        if constexpr (requires(const L& l) { l.visit_state(f); })
+            f(loss_);
         loss_sum_.visit_state(f);
         weight_sum_.visit_state(f);
         f(count_);
     }
 
-private:
-    static std::string who() { return "measure " + detail_mean_loss::name_of<L>(); }
+    /// For tests and benchmarks: a batch through a chosen clone of the pass (the result is
+    /// bit-identical to add()).
+    template <value_range T, real_range P>
+    void add_using(detail::isa which, const T& truth, const P& prediction) {
+        add_impl(truth, prediction, static_cast<const void*>(nullptr), 0, which);
+    }
 
-    template <class T, class P>
-    auto views(const T& truth, const P& prediction) const {
+private:
+    static const std::string& who() {
+        static const std::string w = "measure " + detail_mean_loss::name_of<L>(); // once: no allocation per batch
+        return w;
+    }
+    void validate() const {
+        if constexpr (requires(const L& l) { l.validate(std::string_view{}); })
+            loss_.validate(who());
+    }
+
+    template <class T, class P, class W>
+    void add_impl(const T& truth, const P& prediction, const W* w, std::size_t wn, detail::isa which) {
         auto t = values_of(truth, who(), "truth");
         auto p = values_of(prediction, who(), "prediction");
         detail::check_nonempty(who(), "truth", t.size());
         detail::check_same_size(who(), "prediction", t.size(), p.size());
-        if constexpr (loss_truth_v<L> == truth_kind::binary) {
-            if constexpr (std::integral<element_t<T>>)
-                detail::check_binary(who(), "truth", t);
-            else
-                for (std::size_t i = 0; i < t.size(); ++i)
-                    if (t[i] != 0 && t[i] != 1)
-                        detail::fail_at(
-                            who(), "truth",
-                            "label " + detail::number_text(static_cast<double>(t[i])) + " outside the classes 0..1", i);
-        }
-        return std::pair{t, p};
-    }
-
-    template <class T, class P>
-    [[noreturn]] void report(std::span<const T> t, std::span<const P> p) const {
-        detail::check_finite(who(), "truth", t);
-        detail::check_finite(who(), "prediction", p);
-        detail::fail(who(), "prediction", "loss is not finite (overflow, or a prediction outside the loss's domain)");
+        if constexpr (!std::is_void_v<W>)
+            detail::check_same_size(who(), "weights", t.size(), wn);
+        detail::pass_totals local; // the state changes only when the whole batch is valid
+        detail::pointwise_pass<W>(who(), detail_mean_loss::loss_term<L>{loss_}, t, p, w, local, which);
+        loss_sum_.merge(local.loss);
+        weight_sum_.merge(local.weight);
+        count_ += t.size();
     }
 
     L loss_{};

@@ -24,33 +24,18 @@
 #include <string>
 #include <string_view>
 #include <thread>
+#include <utility>
 #include <vector>
 
 HELDOUT_NAMESPACE_BEGIN
 
 /// Options of evaluate_parallel.
 struct parallel_options {
-    std::size_t threads = 0;       ///< worker threads; 0 = std::thread::hardware_concurrency()
-    std::size_t chunk = 1u << 16;  ///< rows per chunk: fixes the reduction order
+    std::size_t threads = 0;      ///< worker threads; 0 = std::thread::hardware_concurrency()
+    std::size_t chunk = 1u << 16; ///< rows per chunk: fixes the reduction order
 };
 
 namespace detail {
-
-template <class P>
-auto prediction_slice(const P& p, std::size_t first, std::size_t count) {
-    if constexpr (probability_rows<P>)
-        return rows_of(p).slice(first, count);
-    else
-        return values_of(p, "heldout::evaluate_parallel", "prediction").subspan(first, count);
-}
-
-template <class P>
-std::size_t prediction_rows(const P& p) {
-    if constexpr (probability_rows<P>)
-        return rows_of(p).rows;
-    else
-        return values_of(p, "heldout::evaluate_parallel", "prediction").size();
-}
 
 /// The message of an error raised inside a chunk, with " at index i" moved to the row's
 /// index in the whole input (every heldout message puts the index last, in that form).
@@ -135,9 +120,11 @@ double evaluate_chunked(const M& m, const T& truth, const P& prediction, const W
             throw input_error(shift_index(e.what(), first));
         }
     });
-    A total = m.accumulator();
-    for (const A& p : parts)
-        total.merge(p);
+    // Chunk 0 is the start (no copy of it, no merge into an empty accumulator); the others
+    // merge in chunk order.
+    A total = std::move(parts[0]);
+    for (std::size_t c = 1; c < chunks; ++c)
+        total.merge(parts[c]);
     return total.value();
 }
 
@@ -152,8 +139,7 @@ double evaluate_parallel(const M& m, const T& truth, const P& prediction, parall
 
 /// Weighted evaluate_parallel.
 template <outer_measure M, class T, class P, weight_range W>
-double evaluate_parallel(const M& m, const T& truth, const P& prediction, const W& weights,
-                         parallel_options o = {}) {
+double evaluate_parallel(const M& m, const T& truth, const P& prediction, const W& weights, parallel_options o = {}) {
     detail::check_prediction_type<M, P>();
     return detail::evaluate_chunked<M, T, P, W>(m, truth, prediction, &weights, o);
 }

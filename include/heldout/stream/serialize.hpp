@@ -45,7 +45,9 @@ HELDOUT_NAMESPACE_BEGIN
 namespace detail {
 
 template <class T>
-concept visitable_state = requires(const T& t) { t.visit_state([](const auto&) {}); };
+concept visitable_state = requires(const T& t) {
+    t.visit_state([](const auto&) {});
+};
 
 template <class T>
 concept eigen_double_matrix = requires(const T& m) {
@@ -297,8 +299,7 @@ inline constexpr std::uint16_t state_format_version = 1;
 
 /// The accumulator's state as portable bytes (layout in the header comment).
 template <class A>
-    requires detail::visitable_state<A>
-std::vector<std::byte> serialize(const A& acc) {
+requires detail::visitable_state<A> std::vector<std::byte> serialize(const A& acc) {
     detail::state_writer w;
     acc.visit_state(w);
     std::vector<std::byte> out;
@@ -323,8 +324,7 @@ std::vector<std::byte> serialize(const A& acc) {
 
 /// Rebuilds an accumulator of type A from serialize()'s bytes; refuses bytes of another type.
 template <class A>
-    requires detail::visitable_state<A> && std::default_initializable<A>
-A deserialize(std::span<const std::byte> bytes) {
+requires detail::visitable_state<A> && std::default_initializable<A> A deserialize(std::span<const std::byte> bytes) {
     constexpr std::string_view who = "heldout::deserialize";
     if (bytes.size() < 20)
         detail::fail(who, "bytes", "too short to hold a state (" + std::to_string(bytes.size()) + " bytes)");

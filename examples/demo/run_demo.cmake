@@ -1,0 +1,26 @@
+cmake_minimum_required(VERSION 3.21)
+# Runs heldout_demo into WORK_DIR and checks what it printed and wrote (ctest examples.demo).
+file(REMOVE_RECURSE ${WORK_DIR})
+execute_process(COMMAND ${DEMO} ${WORK_DIR}/plots RESULT_VARIABLE rc OUTPUT_VARIABLE out ERROR_VARIABLE err)
+if(NOT rc EQUAL 0)
+    message(FATAL_ERROR "heldout_demo exited with ${rc}:\n${out}\n${err}")
+endif()
+foreach(expect "== 1. The fleet" "== 2. Training error is optimistic" "== 3. Repeated stratified 10-fold"
+               "== 4. Which learner is better" "== 5. The cost-optimal threshold" "== 6. Pictures"
+               "corrected t" "AUC" "Brier score" "cost-weighted error")
+    string(FIND "${out}" "${expect}" at)
+    if(at EQUAL -1)
+        message(FATAL_ERROR "heldout_demo output lacks '${expect}':\n${out}")
+    endif()
+endforeach()
+file(GLOB svgs ${WORK_DIR}/plots/*.svg)
+list(LENGTH svgs count)
+if(count LESS 3)
+    message(FATAL_ERROR "heldout_demo wrote ${count} SVG files, expected at least 3")
+endif()
+execute_process(COMMAND ${PYTHON} -c "import sys, xml.etree.ElementTree as ET\nfor f in sys.argv[1:]:\n    r = ET.parse(f).getroot()\n    assert r.tag == '{http://www.w3.org/2000/svg}svg', f\nprint(len(sys.argv) - 1, 'SVG files parse')"
+                        ${svgs} RESULT_VARIABLE prc OUTPUT_VARIABLE pout ERROR_VARIABLE perr)
+if(NOT prc EQUAL 0)
+    message(FATAL_ERROR "an SVG from heldout_demo is not well-formed XML:\n${perr}")
+endif()
+message(STATUS "${pout}")

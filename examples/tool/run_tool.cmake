@@ -1,0 +1,36 @@
+cmake_minimum_required(VERSION 3.21)
+# One end-to-end case of the heldout tool (registered by examples/tool/CMakeLists.txt):
+# runs TOOL with ARGS ('|'-separated; {DATA} and {WORK} replaced), checks the exit code
+# (CODE), that stdout + stderr match EXPECT (a regex), and with JSON=ON that the output is
+# JSON whose numbers agree with scipy (check_json.py, run by PYTHON).
+string(REPLACE "|" ";" args "${ARGS}")
+string(REPLACE "{DATA}" "${DATA}" args "${args}")
+string(REPLACE "{WORK}" "${WORK}" args "${args}")
+file(REMOVE_RECURSE ${WORK})
+file(MAKE_DIRECTORY ${WORK})
+execute_process(COMMAND ${TOOL} ${args} RESULT_VARIABLE rc OUTPUT_VARIABLE out ERROR_VARIABLE err)
+if(NOT rc EQUAL CODE)
+    message(FATAL_ERROR "exit code ${rc}, expected ${CODE}\nstdout:\n${out}\nstderr:\n${err}")
+endif()
+if(NOT "${out}${err}" MATCHES "${EXPECT}")
+    message(FATAL_ERROR "output does not match '${EXPECT}'\nstdout:\n${out}\nstderr:\n${err}")
+endif()
+if(JSON)
+    file(WRITE ${WORK}/out.json "${out}")
+    execute_process(COMMAND ${PYTHON} ${CMAKE_CURRENT_LIST_DIR}/check_json.py ${WORK}/out.json ${args}
+                    RESULT_VARIABLE prc OUTPUT_VARIABLE pout ERROR_VARIABLE perr)
+    if(NOT prc EQUAL 0)
+        message(FATAL_ERROR "JSON check failed:\n${pout}\n${perr}\noutput:\n${out}")
+    endif()
+    message(STATUS "${pout}")
+endif()
+file(GLOB svgs ${WORK}/plots/*.svg)
+if(svgs)
+    execute_process(COMMAND ${PYTHON} -c "import sys, xml.etree.ElementTree as ET\nfor f in sys.argv[1:]:\n    assert ET.parse(f).getroot().tag == '{http://www.w3.org/2000/svg}svg', f\nprint(len(sys.argv) - 1, 'SVG files parse')"
+                            ${svgs} RESULT_VARIABLE prc OUTPUT_VARIABLE pout ERROR_VARIABLE perr)
+    if(NOT prc EQUAL 0)
+        message(FATAL_ERROR "an SVG is not well-formed XML:\n${perr}")
+    endif()
+    message(STATUS "${pout}")
+endif()
+message(STATUS "${out}${err}")

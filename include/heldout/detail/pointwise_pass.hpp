@@ -1,0 +1,435 @@
+// heldout/detail/pointwise_pass.hpp — the fused pass behind every pointwise measure
+// (mean_loss and so MSE/MAE, Brier score, cross-entropy): validation, per-row terms and
+// compensated sums in one read of the data, vectorised, with a runtime AVX2 clone on x86-64.
+// Internal: include the public headers instead.
+//
+// Rows are taken in chunks of 512. Integer truth is first converted into a small buffer
+// (mixed-width loops do not vectorise); the term fills a buffer of per-row values in a
+// loop GCC vectorises, while integer flags collect anything the fast path must not see
+// (a truth other than 0/1, a probability outside the term's fast range, a non-finite
+// input where the term would not propagate it, a bad weight); the buffer is summed in 8
+// fixed double lanes, whose total goes into a Neumaier sum per chunk. A flagged chunk, or
+// one whose total is not finite, is redone element by element in double (term.exact):
+// that path throws input_error with the global index of the first bad element, and keeps
+// legitimate infinite terms apart (p = 0 for the true class in log loss).
+// The arithmetic of each row and the lane order are fixed, so the AVX2 clone gives
+// bit-identical results; it only processes more rows per instruction. Strict IEEE
+// arithmetic throughout (no -ffast-math, and no FMA: the clone targets AVX2 only).
+#pragma once
+
+#include <heldout/core/error.hpp>
+#include <heldout/core/values.hpp>
+#include <heldout/detail/fast_log.hpp>
+#include <heldout/detail/sum.hpp>
+#include <heldout/detail/validate.hpp>
+
+#include <array>
+#include <cmath>
+#include <cstddef>
+#include <cstdint>
+#include <limits>
+#include <span>
+#include <string>
+#include <string_view>
+#include <type_traits>
+
+HELDOUT_NAMESPACE_BEGIN
+namespace detail {
+
+/// Instruction sets a kernel can be cloned for.
+enum class isa { baseline, avx2 };
+
+#if defined(__GNUC__) && (defined(__x86_64__) || defined(__i386__)) && !defined(HELDOUT_NO_ISA_DISPATCH)
+#define HELDOUT_DETAIL_HAS_AVX2_CLONE 1
+#define HELDOUT_DETAIL_TARGET_AVX2 __attribute__((target("avx2")))
+#else
+#define HELDOUT_DETAIL_HAS_AVX2_CLONE 0
+#define HELDOUT_DETAIL_TARGET_AVX2
+#endif
+
+/// The best clone this CPU runs (checked once).
+inline isa best_isa() noexcept {
+#if HELDOUT_DETAIL_HAS_AVX2_CLONE
+    static const bool avx2 = [] {
+        __builtin_cpu_init();
+        return __builtin_cpu_supports("avx2") != 0;
+    }();
+    return avx2 ? isa::avx2 : isa::baseline;
+#else
+    return isa::baseline;
+#endif
+}
+
+/// Integer truth: nonzero when the value is not 0 or 1 (checked on the raw labels).
+/// Floating truth: a flag word (top bit) set unless the value is 0 or 1.
+template <class Y>
+HELDOUT_DETAIL_INLINE auto truth_flag(Y y) noexcept {
+    if constexpr (std::is_same_v<Y, bool>) {
+        return std::uint8_t{0};
+    } else if constexpr (std::is_integral_v<Y>) {
+        using U = std::make_unsigned_t<Y>;
+        return static_cast<U>(static_cast<U>(y) & static_cast<U>(~U{1}));
+    } else {
+        // y (1 - y) is +-0 only for y in {0, 1}; -(|bits|) has its top bit set unless |bits| = 0.
+        using U = same_width_uint<Y>;
+        const U a = std::bit_cast<U>(y * (Y(1) - y)) & (~U{0} >> 1);
+        return static_cast<U>(U{0} - a);
+    }
+}
+
+/// A flag word (top bit) for a weight that is negative, infinite or NaN (-0 is flagged; the
+/// exact path accepts it). Unsigned integer weights are always valid.
+template <class W>
+HELDOUT_DETAIL_INLINE auto weight_flag(W w) noexcept {
+    if constexpr (std::is_floating_point_v<W>) {
+        return outside_bits(w, W(0), std::numeric_limits<W>::max());
+    } else if constexpr (std::is_signed_v<W>) {
+        return static_cast<std::make_unsigned_t<W>>(w);
+    } else {
+        return std::uint8_t{0};
+    }
+}
+
+template <class Y>
+std::string truth_text(Y y) {
+    if constexpr (std::is_floating_point_v<Y>)
+        return number_text(static_cast<double>(y));
+    else if constexpr (std::is_signed_v<Y>)
+        return std::to_string(static_cast<long long>(y));
+    else
+        return std::to_string(static_cast<unsigned long long>(y));
+}
+
+/// A flag word (top bit) set where x is infinite or NaN (integer operations on the bits).
+template <class T>
+HELDOUT_DETAIL_INLINE same_width_uint<T> non_finite_flag(T x) noexcept {
+    using U = same_width_uint<T>;
+    const U a = std::bit_cast<U>(x) & (~U{0} >> 1);
+    return std::bit_cast<U>(std::numeric_limits<T>::max()) - a;
+}
+
+/// Checks of the exact path: 0/1 truth and a probability in [0, 1] (global index i).
+template <class Y>
+void check_binary_truth_at(std::string_view who, Y y, std::size_t i) {
+    if (!(y == Y(0) || y == Y(1)))
+        fail_at(who, "truth",
+                (std::is_floating_point_v<Y> && y != y) ? std::string("not finite (nan)")
+                                                        : "label " + truth_text(y) + " outside the classes 0..1",
+                i);
+}
+template <class P>
+void check_probability_at(std::string_view who, P p, std::size_t i) {
+    if (!(p >= P(0) && p <= P(1)))
+        fail_at(who, "prediction",
+                p != p ? std::string("not finite (nan)")
+                       : "probability " + number_text(static_cast<double>(p)) + " outside [0, 1]",
+                i);
+}
+template <class T>
+void check_finite_at(std::string_view who, std::string_view arg, T x, std::size_t i) {
+    if constexpr (std::is_floating_point_v<T>)
+        if (!std::isfinite(x))
+            fail_at(who, arg, x != x ? "not finite (nan)" : "not finite (inf)", i);
+}
+template <class W>
+void check_weight_at(std::string_view who, W w, std::size_t i) {
+    check_finite_at(who, "weights", w, i);
+    if (w < W(0))
+        fail_at(who, "weights", "negative weight " + number_text(static_cast<double>(w)), i);
+}
+
+/// Totals of one pass: sum of w * term, sum of w, and the weight of rows whose term is
+/// +infinity where the term allows it (kept apart so that the compensated sums stay finite).
+struct pass_totals {
+    compensated_sum loss{};
+    compensated_sum weight{};
+    double infinite_weight = 0.0;
+
+    void merge(const pass_totals& o) noexcept {
+        loss.merge(o.loss);
+        weight.merge(o.weight);
+        infinite_weight += o.infinite_weight;
+    }
+};
+
+inline constexpr std::size_t pass_chunk = 512;
+inline constexpr std::size_t pass_lanes = 8;
+
+/// One pass over rows [0, n). Term provides:
+///   template <class Y, class P> using truth_buffer   the type integer truth is converted to
+///   R fast(TY y, P p) const       vectorisable; valid where flag(...) == 0
+///   U flag(TY y, P p) const       a flag word, top bit set where the fast path does not apply
+///   static constexpr bool binary_truth        truth must be 0/1 (checked by the pass itself)
+///   void check(who, Y y, P p, i)  throws input_error for a bad element (exact path)
+///   double exact(double y, double p) const   the reference value
+///   static constexpr bool infinite_ok         +inf is a legitimate term (log loss)
+///   void report(who, y, p, i)      throws for a non-finite term on valid input
+/// w == nullptr means unit weights (W = void).
+template <class Term, class Y, class P, class W>
+HELDOUT_DETAIL_INLINE void pointwise_pass_body(std::string_view who, const Term& term, const Y* y, const P* p,
+                                               const W* w, std::size_t n, pass_totals& out) {
+    using TY = typename Term::template truth_buffer<Y, P>;
+    using R = decltype(term.fast(TY{}, P{}));
+    constexpr bool weighted = !std::is_void_v<W>;
+    alignas(64) TY ty[std::is_same_v<TY, Y> ? 1 : pass_chunk];
+    alignas(64) R buf[pass_chunk];
+    alignas(64) double wb[weighted ? pass_chunk : 1];
+    const auto fold = [](const std::array<double, pass_lanes>& a) {
+        return ((a[0] + a[1]) + (a[2] + a[3])) + ((a[4] + a[5]) + (a[6] + a[7]));
+    };
+    for (std::size_t start = 0; start < n; start += pass_chunk) {
+        const std::size_t c = n - start < pass_chunk ? n - start : pass_chunk;
+        const P* __restrict pc = p + start;
+        const TY* __restrict yv;
+        bool exact = false;
+        if constexpr (std::is_same_v<TY, Y>) {
+            yv = y + start;
+        } else {
+            // Integer truth: converted here; 0/1 is checked on the raw labels (nearly free).
+            const Y* __restrict yc = y + start;
+            decltype(truth_flag(Y{})) yflag = 0;
+            for (std::size_t k = 0; k < c; ++k) {
+                if constexpr (Term::binary_truth)
+                    yflag |= truth_flag(yc[k]);
+                ty[k] = static_cast<TY>(yc[k]);
+            }
+            exact = yflag != 0;
+            yv = ty;
+        }
+        decltype(term.flag(TY{}, P{})) flag = 0;
+        decltype(truth_flag(TY{})) tflag = 0;
+        for (std::size_t k = 0; k < c; ++k) {
+            flag |= term.flag(yv[k], pc[k]);
+            if constexpr (Term::binary_truth && std::is_same_v<TY, Y> && std::is_floating_point_v<Y>)
+                tflag |= truth_flag(yv[k]); // floating truth: checked here
+            buf[k] = term.fast(yv[k], pc[k]);
+        }
+        exact = exact || flag_set(flag) || flag_set(tflag);
+        if constexpr (weighted) {
+            const W* __restrict wc = w + start;
+            decltype(weight_flag(W{})) wflag = 0;
+            for (std::size_t k = 0; k < c; ++k) {
+                wflag |= weight_flag(wc[k]);
+                wb[k] = static_cast<double>(wc[k]);
+            }
+            exact = exact || flag_set(wflag);
+        }
+        double sum = 0, wsum = static_cast<double>(c);
+        if (!exact) {
+            std::array<double, pass_lanes> lane{};
+            std::array<double, pass_lanes> wlane{};
+            double tail = 0, wtail = 0;
+            std::size_t k = 0;
+            for (; k + pass_lanes <= c; k += pass_lanes)
+                for (std::size_t j = 0; j < pass_lanes; ++j) {
+                    if constexpr (weighted) {
+                        lane[j] += wb[k + j] * static_cast<double>(buf[k + j]);
+                        wlane[j] += wb[k + j];
+                    } else {
+                        lane[j] += static_cast<double>(buf[k + j]);
+                    }
+                }
+            for (; k < c; ++k) {
+                if constexpr (weighted) {
+                    tail += wb[k] * static_cast<double>(buf[k]);
+                    wtail += wb[k];
+                } else {
+                    tail += static_cast<double>(buf[k]);
+                }
+            }
+            sum = fold(lane) + tail;
+            if constexpr (weighted)
+                wsum = fold(wlane) + wtail;
+            exact = !std::isfinite(sum) || !std::isfinite(wsum); // a NaN, overflow, or an input to report
+        }
+        if (exact) {
+            // Element by element in double, checking in index order so that the first bad
+            // element is the one reported.
+            std::array<double, pass_lanes> lane{};
+            std::array<double, pass_lanes> wlane{};
+            double inf_w = 0;
+            for (std::size_t k = 0; k < c; ++k) {
+                const std::size_t i = start + k;
+                term.check(who, y[i], p[i], i);
+                double wk = 1.0;
+                if constexpr (weighted) {
+                    check_weight_at(who, w[i], i);
+                    wk = static_cast<double>(w[i]);
+                }
+                const double v = term.exact(static_cast<double>(y[i]), static_cast<double>(p[i]));
+                if (!std::isfinite(v)) {
+                    if (!(Term::infinite_ok && v == std::numeric_limits<double>::infinity()))
+                        term.report(who, static_cast<double>(y[i]), static_cast<double>(p[i]), i);
+                    if (wk > 0)
+                        inf_w += wk;
+                } else if (wk > 0) {
+                    lane[k % pass_lanes] += wk * v;
+                }
+                wlane[k % pass_lanes] += wk;
+            }
+            sum = fold(lane);
+            wsum = fold(wlane);
+            if (!std::isfinite(sum) || !std::isfinite(wsum))
+                fail(who, "prediction", "arithmetic overflow (values too large for double)");
+            out.infinite_weight += inf_w;
+            wsum -= inf_w; // weight is kept as finite part + infinite part
+        }
+        out.loss.add(sum);
+        out.weight.add(wsum);
+    }
+}
+
+template <class Term, class Y, class P, class W>
+void pointwise_pass_baseline(std::string_view who, const Term& term, const Y* y, const P* p, const W* w, std::size_t n,
+                             pass_totals& out) {
+    pointwise_pass_body<Term, Y, P, W>(who, term, y, p, w, n, out);
+}
+
+#if HELDOUT_DETAIL_HAS_AVX2_CLONE
+template <class Term, class Y, class P, class W>
+HELDOUT_DETAIL_TARGET_AVX2 void pointwise_pass_avx2(std::string_view who, const Term& term, const Y* y, const P* p,
+                                                    const W* w, std::size_t n, pass_totals& out) {
+    pointwise_pass_body<Term, Y, P, W>(who, term, y, p, w, n, out);
+}
+#endif
+
+/// Runs the pass with the given clone (best_isa() by default); W = void for no weights.
+template <class W, class Term, class Y, class P>
+void pointwise_pass(std::string_view who, const Term& term, std::span<const Y> y, std::span<const P> p, const W* w,
+                    pass_totals& out, isa which = best_isa()) {
+#if HELDOUT_DETAIL_HAS_AVX2_CLONE
+    if (which == isa::avx2) {
+        pointwise_pass_avx2<Term, Y, P, W>(who, term, y.data(), p.data(), w, y.size(), out);
+        return;
+    }
+#endif
+    (void)which;
+    pointwise_pass_baseline<Term, Y, P, W>(who, term, y.data(), p.data(), w, y.size(), out);
+}
+
+/// The fields every binary probability term shares: truth buffered as P, 0/1 and
+/// [0, 1] checks in the exact path.
+struct binary_probability_term_base {
+    static constexpr bool binary_truth = true;
+    template <class Y, class P>
+    using truth_buffer = P;
+    template <class Y, class P>
+    void check(std::string_view who, Y y, P p, std::size_t i) const {
+        check_binary_truth_at(who, y, i);
+        check_probability_at(who, p, i);
+    }
+    [[noreturn]] void report(std::string_view who, double, double, std::size_t i) const {
+        fail_at(who, "prediction", "term is not finite", i);
+    }
+};
+
+/// The mean of a binary term over (truth 0/1, probability) rows, weighted or not.
+/// Policy: `static constexpr std::string_view name`, `template <class T> auto term() const`
+/// (the Term of pointwise_pass for predictions of type T), `double exact(y, p) const`,
+/// `void validate(std::string_view who) const`, and visit_state for its parameters.
+template <class Policy>
+class binary_mean_accumulator {
+public:
+    binary_mean_accumulator() = default;
+    explicit binary_mean_accumulator(const Policy& p) : policy_(p) { policy_.validate(who()); }
+
+    /// Adds a batch: truth 0/1 (integral or floating) and probabilities in [0, 1].
+    template <value_range T, real_range P>
+    void add(const T& truth, const P& prediction) {
+        add_impl(truth, prediction, static_cast<const void*>(nullptr), 0);
+    }
+    /// Adds a weighted batch (weights finite and non-negative).
+    template <value_range T, real_range P, weight_range W>
+    void add(const T& truth, const P& prediction, const W& weights) {
+        auto w = values_of(weights, who(), "weights");
+        add_impl(truth, prediction, w.data(), w.size());
+    }
+    /// Adds one observation.
+    void add_one(double y, double p, double w = 1.0) {
+        policy_.validate(who());
+        check_binary_truth_at(who(), y, 0);
+        check_probability_at(who(), p, 0);
+        check_weight_at(who(), w, 0);
+        const double v = policy_.exact(y, p);
+        if (w > 0 && v == std::numeric_limits<double>::infinity()) {
+            totals_.infinite_weight += w;
+        } else {
+            if (w > 0)
+                totals_.loss.add(w * v);
+            totals_.weight.add(w);
+        }
+        ++count_;
+    }
+    void merge(const binary_mean_accumulator& o) {
+        totals_.merge(o.totals_);
+        count_ += o.count_;
+    }
+    /// sum w term / sum w; +infinity when a row of positive weight has an infinite term.
+    double value() const {
+        if (count_ == 0)
+            fail_undefined(who(), "no observations");
+        const double w = totals_.weight.value() + totals_.infinite_weight;
+        if (!(w > 0))
+            fail_undefined(who(), "total weight is zero");
+        if (totals_.infinite_weight > 0)
+            return std::numeric_limits<double>::infinity();
+        return totals_.loss.value() / w;
+    }
+    void reset() noexcept {
+        totals_ = {};
+        count_ = 0;
+    }
+    std::uint64_t count() const noexcept { return count_; }
+    double total_weight() const noexcept { return totals_.weight.value() + totals_.infinite_weight; }
+    const Policy& parameters() const noexcept { return policy_; }
+
+    template <class F>
+    void visit_state(F&& f) {
+        policy_.visit_state(f);
+        totals_.loss.visit_state(f);
+        totals_.weight.visit_state(f);
+        f(totals_.infinite_weight);
+        f(count_);
+    }
+    template <class F>
+    void visit_state(F&& f) const {
+        policy_.visit_state(f);
+        totals_.loss.visit_state(f);
+        totals_.weight.visit_state(f);
+        f(totals_.infinite_weight);
+        f(count_);
+    }
+
+    /// For tests and benchmarks: the same batch through a chosen clone.
+    template <value_range T, real_range P>
+    void add_with(isa which, const T& truth, const P& prediction) {
+        add_impl(truth, prediction, static_cast<const void*>(nullptr), 0, which);
+    }
+
+private:
+    static const std::string& who() {
+        static const std::string w = "measure " + std::string(Policy::name); // built once: no allocation per batch
+        return w;
+    }
+
+    template <class T, class P, class W>
+    void add_impl(const T& truth, const P& prediction, const W* w, std::size_t wn, isa which = best_isa()) {
+        auto t = values_of(truth, who(), "truth");
+        auto p = values_of(prediction, who(), "prediction");
+        check_nonempty(who(), "truth", t.size());
+        check_same_size(who(), "prediction", t.size(), p.size());
+        if constexpr (!std::is_void_v<W>)
+            check_same_size(who(), "weights", t.size(), wn);
+        pass_totals local; // the state changes only when the whole batch is valid
+        pointwise_pass<W>(who(), policy_.template term<element_t<P>>(), t, p, w, local, which);
+        totals_.merge(local);
+        count_ += t.size();
+    }
+
+    Policy policy_{};
+    pass_totals totals_{};
+    std::uint64_t count_ = 0;
+};
+
+} // namespace detail
+HELDOUT_NAMESPACE_END

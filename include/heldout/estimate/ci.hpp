@@ -1,0 +1,155 @@
+// heldout/estimate/ci.hpp — the interval methods an aggregator can compute, as named values.
+//
+//   heldout::estimate e = agg.estimate(heldout::measure::mse{});                // ci::automatic, 95%
+//   auto w = agg.estimate(error, heldout::ci::wilson, 0.90);                     // one test set
+//   auto b = agg.estimate(auc, heldout::ci::bca(5000, /*seed*/ 7));              // B and seed given
+//   auto c = agg.estimate(mse, heldout::ci::corrected_t);                        // repeated k-fold
+//
+// Each value names one published method; what it is computed from:
+//   t                     one test set: Student t on the per-observation losses (Student 1908)
+//   wilson                one test set, 0/1 losses: Wilson score interval (Wilson 1927)
+//   clopper_pearson       one test set, 0/1 losses: Clopper-Pearson interval (1934)
+//   agresti_coull         one test set, 0/1 losses: Agresti-Coull interval (1998)
+//   bootstrap_percentile  one test set: percentile bootstrap over the test observations, the
+//                         fitted model held fixed (Efron & Tibshirani 1993, ch. 13)
+//   bca                   one test set: bias-corrected and accelerated bootstrap over the test
+//                         observations, jackknife acceleration (Efron 1987)
+//   delong                one test set, AUC: DeLong, DeLong & Clarke-Pearson (1988) variance
+//   corrected_t           several splits without replacement (k-fold, repeated k-fold,
+//                         subsampling): Nadeau & Bengio (2003) corrected resampled t over the
+//                         per-split values, variance factor 1/J + n_test/n_train
+//   naive_t               several splits: the plain t interval over per-split values. Known to
+//                         undercover (the splits share training rows); reported for contrast only
+//   bootstrap_632         bootstrap plans: Efron's (1983) .632 point estimate (no interval)
+//   bootstrap_632_plus    bootstrap plans: Efron & Tibshirani's (1997) .632+ point estimate
+//   automatic             the valid default for what was run (see below)
+//
+// ci::automatic resolves, from the recorded splits and the measure:
+//   one split: 0/1 losses -> wilson; AUC -> delong; other pointwise losses -> t; any other
+//              measure -> bca with 2000 replicates, seed 0;
+//   several splits without replacement -> corrected_t;
+//   bootstrap plans (splits carrying draw counts) -> bootstrap_632_plus.
+// A method that does not fit what was run is refused with heldout::input_error saying why
+// (Wilson on pooled cross-validation predictions, corrected t on one test set, ...).
+#pragma once
+
+#include <heldout/core/error.hpp>
+
+#include <cstddef>
+#include <cstdint>
+#include <string_view>
+
+HELDOUT_NAMESPACE_BEGIN
+namespace ci {
+
+/// Which interval method.
+enum class method_id : unsigned char {
+    automatic,
+    t,
+    wilson,
+    clopper_pearson,
+    agresti_coull,
+    bootstrap_percentile,
+    bca,
+    delong,
+    corrected_t,
+    naive_t,
+    bootstrap_632,
+    bootstrap_632_plus
+};
+
+/// A method and its settings (bootstrap replicates and seed; ignored by the others).
+struct method {
+    method_id id = method_id::automatic;
+    std::size_t replicates = 2000;
+    std::uint64_t seed = 0;
+
+    /// The same bootstrap method with B replicates and a seed: `ci::bca(5000, 7)`.
+    constexpr method operator()(std::size_t b, std::uint64_t s = 0) const {
+        if (id != method_id::bootstrap_percentile && id != method_id::bca)
+            detail::fail("heldout::ci::method", "replicates",
+                         "only ci::bootstrap_percentile and ci::bca take replicates and a seed");
+        if (b < 2)
+            detail::fail("heldout::ci::method", "replicates", "at least 2 bootstrap replicates are needed");
+        return method{id, b, s};
+    }
+    friend constexpr bool operator==(const method&, const method&) = default;
+};
+
+inline constexpr method automatic{method_id::automatic};
+inline constexpr method t{method_id::t};
+inline constexpr method wilson{method_id::wilson};
+inline constexpr method clopper_pearson{method_id::clopper_pearson};
+inline constexpr method agresti_coull{method_id::agresti_coull};
+inline constexpr method bootstrap_percentile{method_id::bootstrap_percentile};
+inline constexpr method bca{method_id::bca};
+inline constexpr method delong{method_id::delong};
+inline constexpr method corrected_t{method_id::corrected_t};
+inline constexpr method naive_t{method_id::naive_t};
+inline constexpr method bootstrap_632{method_id::bootstrap_632};
+inline constexpr method bootstrap_632_plus{method_id::bootstrap_632_plus};
+
+/// The identifier used in exports ("corrected_t").
+constexpr std::string_view id_text(method_id m) noexcept {
+    switch (m) {
+    case method_id::automatic:
+        return "automatic";
+    case method_id::t:
+        return "t";
+    case method_id::wilson:
+        return "wilson";
+    case method_id::clopper_pearson:
+        return "clopper_pearson";
+    case method_id::agresti_coull:
+        return "agresti_coull";
+    case method_id::bootstrap_percentile:
+        return "bootstrap_percentile";
+    case method_id::bca:
+        return "bca";
+    case method_id::delong:
+        return "delong";
+    case method_id::corrected_t:
+        return "corrected_t";
+    case method_id::naive_t:
+        return "naive_t";
+    case method_id::bootstrap_632:
+        return "bootstrap_632";
+    case method_id::bootstrap_632_plus:
+        return "bootstrap_632_plus";
+    }
+    return "?";
+}
+
+/// The label printed beside an estimate ("corrected t (Nadeau-Bengio)").
+constexpr std::string_view label(method_id m) noexcept {
+    switch (m) {
+    case method_id::automatic:
+        return "automatic";
+    case method_id::t:
+        return "Student t";
+    case method_id::wilson:
+        return "Wilson";
+    case method_id::clopper_pearson:
+        return "Clopper-Pearson";
+    case method_id::agresti_coull:
+        return "Agresti-Coull";
+    case method_id::bootstrap_percentile:
+        return "percentile bootstrap";
+    case method_id::bca:
+        return "BCa bootstrap";
+    case method_id::delong:
+        return "DeLong";
+    case method_id::corrected_t:
+        return "corrected t (Nadeau-Bengio)";
+    case method_id::naive_t:
+        return "naive t over splits (undercovers)";
+    case method_id::bootstrap_632:
+        return ".632 bootstrap";
+    case method_id::bootstrap_632_plus:
+        return ".632+ bootstrap";
+    }
+    return "?";
+}
+
+} // namespace ci
+HELDOUT_NAMESPACE_END

@@ -1,0 +1,350 @@
+// heldout/estimate/delong.hpp — the uncertainty of an AUC and of differences of AUCs measured
+// on the same cases: DeLong, DeLong & Clarke-Pearson (1988) variance, computed in O(n log n)
+// by the midrank method of Sun & Xu (2014) on a radix sort (never the O(n^2) double loop).
+//
+//   auto e = heldout::delong_auc(truth, scores);              // e.value, e.se, e.lower, e.upper
+//   auto w = heldout::delong_auc(truth, scores, 0.9, heldout::auc_interval_method::wald);
+//   auto t = heldout::delong_test(truth, scores_a, scores_b); // t.difference = AUC(a) - AUC(b)
+//   // t.se, t.z, t.p_value (two-sided), t.lower, t.upper (Wald interval of the difference)
+//
+//   Eigen::MatrixXd s(n, 3);                                  // one column per model
+//   auto c = heldout::delong_covariance(truth, s);            // c.auc, c.covariance (3 x 3)
+//   Eigen::MatrixXd L(2, 3);  L << 1, -1, 0,  0, 1, -1;       // H0: all three AUCs equal
+//   auto chi = c.test(L);                                     // chi.statistic, chi.df, chi.p_value
+//
+// Method (methods.md §3.3-3.4). Positives X_i (m of them), negatives Y_j (n). Structural
+// components V10(X_i) = (#{Y < X_i} + #{Y = X_i}/2)/n and V01(Y_j) = (#{X > Y_j} + #{X = Y_j}/2)/m,
+// which are Sun & Xu's (T_Z - T_X)/n and 1 - (T_Z - T_Y)/m; both come from one sort of the
+// pooled scores (positives and negatives tied to each other fall in one tie group). Then
+// S10[r,s] = sum_i (V10^r_i - A_r)(V10^s_i - A_s)/(m - 1), S01 likewise over j with n - 1, and
+// Cov(A) = S10/m + S01/n.
+//  * delong_auc interval: by default logit(A) +- z se/(A(1-A)), transformed back (stays inside
+//    (0, 1)); auc_interval_method::wald gives A +- z se (can leave [0, 1]).
+//  * delong_test: z = (A_a - A_b)/se, se^2 = S_aa + S_bb - 2 S_ab, two-sided normal p value, and
+//    the Wald interval of the difference.
+//  * delong_covariance(...).test(L): (L A)' (L S L')^-1 (L A) ~ chi-squared with rank(L) degrees
+//    of freedom (Boost.Math chi_squared), for any contrast matrix L with k columns.
+// Errors: bad truth/scores as for measure::auc (input_error with the index); a level outside
+// (0, 1) -> input_error; one class absent, fewer than 2 positives or 2 negatives (S10 or S01
+// divides by m - 1, n - 1), a zero variance (e.g. A = 0 or 1: every V10 equal) or a singular
+// L S L' -> undefined_error; the logit interval at A = 0 or 1 is undefined for the same reason.
+#pragma once
+
+#include <heldout/core/values.hpp>
+#include <heldout/detail/ranks.hpp>
+
+#include <Eigen/Dense>
+#include <boost/math/distributions/chi_squared.hpp>
+#include <boost/math/distributions/normal.hpp>
+
+#include <algorithm>
+#include <cmath>
+#include <cstddef>
+#include <cstdint>
+#include <limits>
+#include <span>
+#include <string>
+#include <string_view>
+#include <type_traits>
+#include <vector>
+
+HELDOUT_NAMESPACE_BEGIN
+
+/// How delong_auc builds its interval.
+enum class auc_interval_method {
+    logit, ///< logit(A) +- z se / (A (1 - A)), back-transformed: stays in (0, 1)
+    wald   ///< A +- z se
+};
+
+/// An AUC with its DeLong standard error and a confidence interval.
+struct auc_estimate {
+    double value = 0;
+    double se = 0;
+    double lower = 0;
+    double upper = 0;
+    double level = 0;
+};
+
+/// The DeLong test of AUC(a) - AUC(b) on the same cases.
+struct auc_difference_test {
+    double difference = 0; ///< AUC(a) - AUC(b)
+    double se = 0;
+    double z = 0;
+    double p_value = 0; ///< two-sided
+    double lower = 0;   ///< Wald interval of the difference
+    double upper = 0;
+    double level = 0;
+};
+
+/// A chi-squared test of a contrast of correlated AUCs.
+struct auc_contrast_test {
+    double statistic = 0;
+    double df = 0;
+    double p_value = 0;
+};
+
+/// The AUCs of k models on the same cases and their DeLong covariance matrix.
+struct auc_covariance {
+    Eigen::VectorXd auc;
+    Eigen::MatrixXd covariance;
+    std::size_t positives = 0;
+    std::size_t negatives = 0;
+
+    /// Tests H0: L auc = 0 with (L A)'(L S L')^-1 (L A) ~ chi-squared(rank L). L has k columns
+    /// and linearly independent rows (input_error otherwise); a singular L S L' is undefined.
+    auc_contrast_test test(const Eigen::MatrixXd& L) const {
+        constexpr std::string_view who = "heldout::auc_covariance::test";
+        if (L.cols() != auc.size() || L.rows() == 0)
+            detail::fail(who, "L",
+                         "needs " + std::to_string(auc.size()) + " columns and at least one row, got " +
+                             std::to_string(L.rows()) + " x " + std::to_string(L.cols()));
+        if (!L.allFinite())
+            detail::fail(who, "L", "not finite");
+        Eigen::FullPivLU<Eigen::MatrixXd> lu(L);
+        if (lu.rank() < L.rows())
+            detail::fail(who, "L",
+                         "rows are linearly dependent (rank " + std::to_string(lu.rank()) + " < " +
+                             std::to_string(L.rows()) + ")");
+        const Eigen::VectorXd la = L * auc;
+        const Eigen::MatrixXd v = L * covariance * L.transpose();
+        Eigen::SelfAdjointEigenSolver<Eigen::MatrixXd> es(v);
+        const double top = es.eigenvalues().cwiseAbs().maxCoeff();
+        if (!(es.eigenvalues().minCoeff() > 1e-12 * top) || !(top > 0))
+            detail::fail_undefined(who, "L S L' is singular (a contrast with zero variance)");
+        const double stat = la.dot(v.ldlt().solve(la));
+        const double df = static_cast<double>(L.rows());
+        const double p = boost::math::cdf(boost::math::complement(boost::math::chi_squared(df), stat));
+        return {stat, df, p};
+    }
+};
+
+namespace detail {
+
+inline double delong_z(std::string_view who, double level) {
+    if (!(level > 0 && level < 1))
+        fail(who, "level", "must lie in (0, 1), got " + number_text(level));
+    return boost::math::quantile(boost::math::normal(), 0.5 + level / 2);
+}
+
+inline void check_delong_counts(std::string_view who, std::uint64_t m, std::uint64_t n) {
+    check_both_classes(who, static_cast<double>(m), static_cast<double>(n), false);
+    if (m < 2 || n < 2)
+        fail_undefined(who, "the DeLong variance needs at least 2 positives and 2 negatives (got " + std::to_string(m) +
+                                " and " + std::to_string(n) + ")");
+}
+
+/// One model: sorts, writes V10 (positives) / V01 (negatives) into v[row], returns doubled U
+/// and the class counts.
+template <class T, class L>
+rank_sum_counts delong_components(std::string_view who, std::string_view arg, std::span<const L> y,
+                                  std::span<const T> s, rank_scratch& sc, double* v) {
+    const auto sr = sort_rows(who, s, y, sc, arg);
+    const std::size_t n = sr.n;
+    // Class totals first (V01 needs the positives above each group).
+    std::uint64_t m = 0;
+    for (std::size_t i = 0; i < n; ++i)
+        m += sr.at(i) >> 31;
+    const std::uint64_t nn = n - m;
+    const double inv2n = nn ? 0.5 / static_cast<double>(nn) : 0.0;
+    const double inv2m = m ? 0.5 / static_cast<double>(m) : 0.0;
+    std::uint64_t u2 = 0, neg_below = 0, pos_below = 0;
+    std::size_t i = 0;
+    while (i < n) {
+        std::size_t j = i;
+        std::uint64_t gp = 0;
+        do
+            gp += sr.at(j++) >> 31;
+        while (j < n && sr.same(j));
+        const std::uint64_t gn = (j - i) - gp;
+        // Doubled counts are exact integers; one division rounds once.
+        const double v10 = static_cast<double>(2 * neg_below + gn) * inv2n;
+        const double v01 = static_cast<double>(2 * (m - pos_below - gp) + gp) * inv2m;
+        for (std::size_t t = i; t < j; ++t) {
+            const std::uint32_t p = sr.at(t);
+            v[p & ~label_bit] = (p & label_bit) ? v10 : v01;
+        }
+        u2 += gp * (2 * neg_below + gn);
+        neg_below += gn;
+        pos_below += gp;
+        i = j;
+    }
+    return {u2, m, nn};
+}
+
+/// AUCs and DeLong covariance of k models given as spans of scores.
+template <class T, class L>
+auc_covariance delong_core(std::string_view who, std::span<const L> y, std::span<const std::span<const T>> models,
+                           std::span<const std::string> args) {
+    const std::size_t k = models.size();
+    const std::size_t n = y.size();
+    check_nonempty(who, "truth", n);
+    check_binary(who, "truth", y);
+    auto& sc = thread_scratch();
+    double* const v = sc.values.get(k * n);
+    Eigen::VectorXd a(static_cast<Eigen::Index>(k));
+    std::uint64_t m = 0, nn = 0;
+    for (std::size_t r = 0; r < k; ++r) {
+        const auto c = delong_components(who, args[r], y, models[r], sc, v + r * n);
+        if (r == 0)
+            check_delong_counts(who, c.positives, c.negatives);
+        m = c.positives;
+        nn = c.negatives;
+        a[static_cast<Eigen::Index>(r)] =
+            static_cast<double>(static_cast<long double>(c.doubled_u) / (2.0L * static_cast<long double>(m) * nn));
+    }
+    // Centred cross-products, rows in blocks: plain partials inside a block, compensated totals.
+    const std::size_t pairs = k * (k + 1) / 2;
+    std::vector<compensated_sum> s10(pairs), s01(pairs);
+    std::vector<double> b10(pairs), b01(pairs), c(k);
+    for (std::size_t start = 0; start < n; start += block_rows) {
+        const std::size_t end = std::min(n, start + block_rows);
+        std::fill(b10.begin(), b10.end(), 0.0);
+        std::fill(b01.begin(), b01.end(), 0.0);
+        for (std::size_t i = start; i < end; ++i) {
+            for (std::size_t r = 0; r < k; ++r)
+                c[r] = v[r * n + i] - a[static_cast<Eigen::Index>(r)];
+            auto& b = y[i] ? b10 : b01;
+            std::size_t q = 0;
+            for (std::size_t r = 0; r < k; ++r)
+                for (std::size_t t = r; t < k; ++t)
+                    b[q++] += c[r] * c[t];
+        }
+        for (std::size_t q = 0; q < pairs; ++q) {
+            s10[q].add(b10[q]);
+            s01[q].add(b01[q]);
+        }
+    }
+    auc_covariance out;
+    out.auc = a;
+    out.covariance.resize(static_cast<Eigen::Index>(k), static_cast<Eigen::Index>(k));
+    out.positives = static_cast<std::size_t>(m);
+    out.negatives = static_cast<std::size_t>(nn);
+    const double md = static_cast<double>(m), nd = static_cast<double>(nn);
+    std::size_t q = 0;
+    for (std::size_t r = 0; r < k; ++r)
+        for (std::size_t t = r; t < k; ++t, ++q) {
+            const double cov = s10[q].value() / (md - 1) / md + s01[q].value() / (nd - 1) / nd;
+            out.covariance(static_cast<Eigen::Index>(r), static_cast<Eigen::Index>(t)) = cov;
+            out.covariance(static_cast<Eigen::Index>(t), static_cast<Eigen::Index>(r)) = cov;
+        }
+    return out;
+}
+
+} // namespace detail
+
+/// AUC with its DeLong standard error and a level confidence interval (logit by default).
+template <label_range T, real_range S>
+auc_estimate delong_auc(const T& truth, const S& scores, double level = 0.95,
+                        auc_interval_method method = auc_interval_method::logit) {
+    constexpr std::string_view who = "heldout::delong_auc";
+    using E = element_t<S>;
+    static_assert(detail::rankable_score_v<E>, "heldout: ranking measures take float or double scores");
+    auto y = values_of(truth, who, "truth");
+    auto s = values_of(scores, who, "scores");
+    const double z = detail::delong_z(who, level);
+    // One model needs no alignment by case: the variances come from the tie groups.
+    auto& sc = detail::thread_scratch();
+    const auto sr = detail::sort_rows(who, s, y, sc);
+    const std::size_t n = sr.n;
+    const auto r = detail::doubled_mann_whitney(sr);
+    detail::check_delong_counts(who, r.positives, r.negatives);
+    const std::uint64_t m = r.positives, nn = r.negatives;
+    const double a =
+        static_cast<double>(static_cast<long double>(r.doubled_u) / (2.0L * static_cast<long double>(m) * nn));
+    const double inv2n = 0.5 / static_cast<double>(nn), inv2m = 0.5 / static_cast<double>(m);
+    detail::compensated_sum s10, s01;
+    std::uint64_t neg_below = 0, pos_below = 0;
+    std::size_t i = 0;
+    while (i < n) {
+        std::size_t j = i;
+        std::uint64_t gp = 0;
+        do
+            gp += sr.at(j++) >> 31;
+        while (j < n && sr.same(j));
+        const std::uint64_t gn = (j - i) - gp;
+        const double d10 = static_cast<double>(2 * neg_below + gn) * inv2n - a;
+        const double d01 = static_cast<double>(2 * (m - pos_below - gp) + gp) * inv2m - a;
+        s10.add(static_cast<double>(gp) * d10 * d10);
+        s01.add(static_cast<double>(gn) * d01 * d01);
+        neg_below += gn;
+        pos_below += gp;
+        i = j;
+    }
+    const double md = static_cast<double>(m), nd = static_cast<double>(nn);
+    const double var = s10.value() / (md - 1) / md + s01.value() / (nd - 1) / nd;
+    if (!(var > 0))
+        detail::fail_undefined(who, "the DeLong variance is zero (AUC = " + detail::number_text(a) +
+                                        ": every positive outranks, or ties with, the negatives alike)");
+    auc_estimate e;
+    e.value = a;
+    e.se = std::sqrt(var);
+    e.level = level;
+    if (method == auc_interval_method::wald) {
+        e.lower = a - z * e.se;
+        e.upper = a + z * e.se;
+    } else {
+        if (!(a > 0 && a < 1))
+            detail::fail_undefined(who, "the logit interval needs 0 < AUC < 1");
+        const double c = std::log(a / (1 - a)), h = z * e.se / (a * (1 - a));
+        e.lower = 1 / (1 + std::exp(-(c - h)));
+        e.upper = 1 / (1 + std::exp(-(c + h)));
+    }
+    return e;
+}
+
+/// DeLong test of AUC(a) - AUC(b), both models scored on the same cases.
+template <label_range T, real_range Sa, real_range Sb>
+auc_difference_test delong_test(const T& truth, const Sa& scores_a, const Sb& scores_b, double level = 0.95) {
+    constexpr std::string_view who = "heldout::delong_test";
+    static_assert(std::is_same_v<element_t<Sa>, element_t<Sb>>,
+                  "heldout::delong_test: both models' scores need the same floating-point type");
+    using E = element_t<Sa>;
+    static_assert(detail::rankable_score_v<E>, "heldout: ranking measures take float or double scores");
+    auto y = values_of(truth, who, "truth");
+    const std::span<const E> ms[2] = {values_of(scores_a, who, "scores_a"), values_of(scores_b, who, "scores_b")};
+    const double z = detail::delong_z(who, level);
+    const std::string args[2] = {"scores_a", "scores_b"};
+    const auto c = detail::delong_core<E>(who, y, ms, args);
+    auc_difference_test t;
+    t.difference = c.auc[0] - c.auc[1];
+    const double var = c.covariance(0, 0) + c.covariance(1, 1) - 2 * c.covariance(0, 1);
+    if (!(var > 0))
+        detail::fail_undefined(who, "the variance of the difference is zero (e.g. both AUCs are 1, or the two "
+                                    "models rank the cases alike)");
+    t.se = std::sqrt(var);
+    t.z = t.difference / t.se;
+    t.p_value = 2 * boost::math::cdf(boost::math::complement(boost::math::normal(), std::abs(t.z)));
+    t.lower = t.difference - z * t.se;
+    t.upper = t.difference + z * t.se;
+    t.level = level;
+    return t;
+}
+
+/// AUCs and DeLong covariance of k models: scores is an n x k Eigen matrix (a column per model).
+template <label_range T, class M>
+requires detail::eigen_dense_matrix<std::remove_cvref_t<M>> auc_covariance delong_covariance(const T& truth,
+                                                                                             const M& scores) {
+    constexpr std::string_view who = "heldout::delong_covariance";
+    using E = std::remove_cv_t<typename std::remove_cvref_t<M>::Scalar>;
+    static_assert(detail::rankable_score_v<E>, "heldout: ranking measures take float or double scores");
+    auto y = values_of(truth, who, "truth");
+    const row_matrix<E> p{scores.data(), static_cast<std::size_t>(scores.rows()),
+                          static_cast<std::size_t>(scores.cols()), static_cast<std::ptrdiff_t>(scores.rowStride()),
+                          static_cast<std::ptrdiff_t>(scores.colStride())};
+    if (p.cols == 0)
+        detail::fail(who, "scores", "no columns (one column per model)");
+    detail::check_same_size(who, "scores", y.size(), p.rows);
+    // Columns copied to contiguous storage (any Eigen layout); the cost is small next to the sorts.
+    std::vector<E> cols(p.rows * p.cols);
+    std::vector<std::span<const E>> ms;
+    std::vector<std::string> args;
+    for (std::size_t j = 0; j < p.cols; ++j) {
+        for (std::size_t i = 0; i < p.rows; ++i)
+            cols[j * p.rows + i] = p(i, j);
+        ms.emplace_back(cols.data() + j * p.rows, p.rows);
+        args.push_back("scores column " + std::to_string(j));
+    }
+    return detail::delong_core<E>(who, y, ms, args);
+}
+
+HELDOUT_NAMESPACE_END
