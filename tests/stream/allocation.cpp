@@ -56,10 +56,45 @@ void* operator new[](std::size_t n) {
         return p;
     throw std::bad_alloc();
 }
+// Every form is replaced, so that each allocation and its release go through malloc/free
+// (the standard library's temporary buffers use the nothrow form; over-aligned types the
+// aligned one) — a partial replacement mixes allocators, which ASan rightly reports.
+void* operator new(std::size_t n, const std::nothrow_t&) noexcept {
+    ++g_allocations;
+    return std::malloc(n ? n : 1);
+}
+void* operator new[](std::size_t n, const std::nothrow_t&) noexcept {
+    ++g_allocations;
+    return std::malloc(n ? n : 1);
+}
+void* operator new(std::size_t n, std::align_val_t a) {
+    ++g_allocations;
+    const std::size_t al = static_cast<std::size_t>(a);
+    if (void* p = std::aligned_alloc(al, (n + al - 1) / al * al))
+        return p;
+    throw std::bad_alloc();
+}
+void* operator new[](std::size_t n, std::align_val_t a) { return operator new(n, a); }
+void* operator new(std::size_t n, std::align_val_t a, const std::nothrow_t&) noexcept {
+    ++g_allocations;
+    const std::size_t al = static_cast<std::size_t>(a);
+    return std::aligned_alloc(al, (n + al - 1) / al * al);
+}
+void* operator new[](std::size_t n, std::align_val_t a, const std::nothrow_t& t) noexcept {
+    return operator new(n, a, t);
+}
 void operator delete(void* p) noexcept { std::free(p); }
 void operator delete[](void* p) noexcept { std::free(p); }
 void operator delete(void* p, std::size_t) noexcept { std::free(p); }
 void operator delete[](void* p, std::size_t) noexcept { std::free(p); }
+void operator delete(void* p, const std::nothrow_t&) noexcept { std::free(p); }
+void operator delete[](void* p, const std::nothrow_t&) noexcept { std::free(p); }
+void operator delete(void* p, std::align_val_t) noexcept { std::free(p); }
+void operator delete[](void* p, std::align_val_t) noexcept { std::free(p); }
+void operator delete(void* p, std::size_t, std::align_val_t) noexcept { std::free(p); }
+void operator delete[](void* p, std::size_t, std::align_val_t) noexcept { std::free(p); }
+void operator delete(void* p, std::align_val_t, const std::nothrow_t&) noexcept { std::free(p); }
+void operator delete[](void* p, std::align_val_t, const std::nothrow_t&) noexcept { std::free(p); }
 
 namespace {
 using namespace stream_cases;
