@@ -4,8 +4,8 @@
 // baseline in the same run: per replicate, resample the row indices with the same draws,
 // std::sort the resampled (score, label) pairs, and compute the AUC with exact tie groups.
 // Both routes see identical resamples and give the same interval (checked before timing):
-// heldout's AUC route reads its draws as ranks, so for that check the baseline maps each
-// draw through the same rank order to a row; timed, it uses the draws as rows directly
+// heldout's AUC route reads its draws as positions in its resampling order, so for that check
+// the baseline maps each draw through the same order to a row; timed, it uses the draws as rows directly
 // (the same work minus that lookup, so the baseline is not slowed down).
 // items/s counts resampled rows (B n per interval); the summary at the end prints the
 // speed-up in process CPU time (baseline / heldout; issue 7 target >= 20 at 1e6) — CPU
@@ -93,12 +93,15 @@ heldout::bootstrap_result naive_percentile_auc(const auc_data& d, const std::vec
     return heldout::percentile_interval(theta, values, 0.95);
 }
 
-// Rows in ascending score order, ties in row order (heldout::ranked_sample's rank order).
+// Rows in the AUC bootstrap's resampling order: ascending score, within ties the negatives
+// first, then the positives, each in row order (heldout/estimate/bootstrap.hpp).
 std::vector<std::uint32_t> row_of_rank(const auc_data& d) {
     std::vector<std::uint32_t> r(d.truth.size());
     for (std::size_t i = 0; i < r.size(); ++i)
         r[i] = static_cast<std::uint32_t>(i);
-    std::stable_sort(r.begin(), r.end(), [&](std::uint32_t a, std::uint32_t b) { return d.scores[a] < d.scores[b]; });
+    std::stable_sort(r.begin(), r.end(), [&](std::uint32_t a, std::uint32_t b) {
+        return d.scores[a] < d.scores[b] || (d.scores[a] == d.scores[b] && d.truth[a] < d.truth[b]);
+    });
     return r;
 }
 

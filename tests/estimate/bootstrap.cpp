@@ -10,6 +10,7 @@
 #include <algorithm>
 #include <cmath>
 #include <cstdint>
+#include <numeric>
 #include <random>
 #include <string_view>
 #include <vector>
@@ -404,14 +405,19 @@ TEST_SUITE("estimate/bootstrap") {
         }
         const heldout::bootstrap_options o{.replicates = 60, .seed = 3, .level = 0.9};
         const auto fast = heldout::bootstrap_replicates(heldout::measure::auc{}, y, s, o);
-        // Generic route by hand: the documented draws, read as ranks (ascending score, ties in row
-        // order), become weights by row for the AUC accumulator (which sorts every time).
-        const heldout::ranked_sample ranked(y, s);
+        // Generic route by hand: the documented draws, read as positions in the documented
+        // resampling order (ascending score; within ties the negatives first, then the
+        // positives, each in row order; built here with std::stable_sort), become weights by row
+        // for the AUC accumulator (which sorts every time).
+        std::vector<std::size_t> order(n);
+        std::iota(order.begin(), order.end(), std::size_t{0});
+        std::stable_sort(order.begin(), order.end(),
+                         [&](std::size_t a, std::size_t b) { return s[a] < s[b] || (s[a] == s[b] && y[a] < y[b]); });
         std::vector<std::uint32_t> c(n), w(n);
         for (std::size_t b = 0; b < o.replicates; ++b) {
             heldout::bootstrap_counts(c, o.seed, b);
             for (std::size_t k = 0; k < n; ++k)
-                w[ranked.row(k)] = c[k];
+                w[order[k]] = c[k];
             CHECK(heldout_test::close(fast.values[b], heldout::evaluate(heldout::measure::auc{}, y, s, w), 1e-14));
         }
         // Jackknife: closed form vs leaving each row out and recomputing (brute force).
@@ -441,6 +447,41 @@ TEST_SUITE("estimate/bootstrap") {
         const auto pb = heldout::paired_bootstrap_bca(heldout::measure::auc{}, y, s, s2, o);
         CHECK(pb.lower < pb.estimate);
         CHECK(pb.upper > pb.estimate);
+    }
+    TEST_CASE("the vectorised byte-count pass of the AUC replicate equals a plain loop, counts up to 255") {
+        std::mt19937_64 g(12); // test data only
+        for (std::size_t n : {0u, 15u, 16u, 17u, 1000u, 16 * 1024u + 5u, 40000u}) {
+            std::vector<std::uint8_t> c(n), f(n);
+            for (std::size_t i = 0; i < n; ++i) {
+                c[i] = static_cast<std::uint8_t>(g() % 8 == 0 ? 255 - g() % 3 : g() % 4);
+                f[i] = static_cast<std::uint8_t>(g() % 2);
+            }
+            std::uint64_t s = 0, neg = 0, pos = 0;
+            std::size_t i = heldout::detail::byte_count_sums(c.data(), f.data(), n, s, neg, pos);
+            CHECK(i % 16 == 0);
+            CHECK(i <= n);
+            for (; i < n; ++i) { // the scalar rest, as the engine does
+                if (f[i]) {
+                    s += c[i] * neg;
+                    pos += c[i];
+                } else {
+                    neg += c[i];
+                }
+            }
+            std::uint64_t s_ref = 0, neg_ref = 0, pos_ref = 0;
+            for (std::size_t k = 0; k < n; ++k) {
+                if (f[k]) {
+                    s_ref += c[k] * neg_ref;
+                    pos_ref += c[k];
+                } else {
+                    neg_ref += c[k];
+                }
+            }
+            CAPTURE(n);
+            CHECK(s == s_ref);
+            CHECK(neg == neg_ref);
+            CHECK(pos == pos_ref);
+        }
     }
     TEST_CASE("AUC with one positive: resamples without it are left out; the jackknife is undefined") {
         const std::vector<int> y{1, 0, 0, 0, 0};

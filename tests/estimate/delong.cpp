@@ -135,6 +135,31 @@ TEST_SUITE("estimate/delong") {
               doctest::Approx(heldout::delong_covariance(y20, Eigen::MatrixXd(m.cast<double>())).covariance(0, 1))
                   .epsilon(1e-14));
     }
+    TEST_CASE("delong_test's two-model pass equals the k-model covariance route, also for a wide AUC gap and ties") {
+        std::mt19937_64 g(31); // test data only
+        std::normal_distribution<double> z;
+        for (double gap : {0.0, 0.5, 3.0}) {
+            for (std::size_t n : {40u, 5000u, 20000u}) {
+                std::vector<int> y(n);
+                Eigen::MatrixXd s(static_cast<Eigen::Index>(n), 2);
+                std::vector<double> a(n), b(n);
+                for (std::size_t i = 0; i < n; ++i) {
+                    y[i] = static_cast<int>(g() % 2);
+                    a[i] = std::round((z(g) + (1.0 + gap) * y[i]) * 16) / 16; // ties
+                    b[i] = z(g) + 0.7 * y[i];
+                    s(static_cast<Eigen::Index>(i), 0) = a[i];
+                    s(static_cast<Eigen::Index>(i), 1) = b[i];
+                }
+                CAPTURE(gap);
+                CAPTURE(n);
+                const auto c = heldout::delong_covariance(y, s);
+                const double var = c.covariance(0, 0) + c.covariance(1, 1) - 2 * c.covariance(0, 1);
+                const auto t = heldout::delong_test(y, a, b);
+                CHECK(t.difference == doctest::Approx(c.auc[0] - c.auc[1]).epsilon(1e-15));
+                CHECK(heldout_test::close(t.se * t.se, var, 1e-12));
+            }
+        }
+    }
     TEST_CASE("undefined cases and bad input") {
         // perfect separation: every V10 = 1, variance zero
         const std::vector<int> y{1, 1, 0, 0};

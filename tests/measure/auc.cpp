@@ -3,6 +3,8 @@
 #include <heldout/measure/auc.hpp>
 
 #include <heldout/core/random.hpp>
+#include <heldout/measure/average_precision.hpp>
+#include <heldout/measure/partial_auc.hpp>
 
 #include "support/reference.hpp"
 
@@ -10,6 +12,7 @@
 #include <doctest/doctest.h>
 
 #include <algorithm>
+#include <bit>
 #include <cmath>
 #include <cstdint>
 #include <limits>
@@ -264,6 +267,74 @@ TEST_SUITE("measure/auc") {
             check(f);
             check(d);
         }
+    }
+    TEST_CASE("payload-free radix sort of packed 33-bit keys (score key << 1 | label) equals std::sort") {
+        std::mt19937_64 g(17);
+        for (int rep = 0; rep < 5; ++rep) {
+            const std::size_t n = 1 + g() % 7000;
+            std::vector<std::uint64_t> k(n), t(n);
+            for (std::size_t i = 0; i < n; ++i) {
+                float x = std::bit_cast<float>(static_cast<std::uint32_t>(g()));
+                if (!std::isfinite(x) || rep == 1)
+                    x = static_cast<float>(g() % 3); // few values: skipped passes
+                k[i] = (std::uint64_t{heldout::detail::order_key(x)} << 1) | (g() & 1u);
+            }
+            std::vector<std::uint64_t> expect = k;
+            std::sort(expect.begin(), expect.end());
+            std::vector<std::uint32_t> hist(heldout::detail::radix_layout<std::uint64_t, 11, 33>::histogram_size);
+            const bool in_tmp = heldout::detail::radix_sort_keys<33>(k.data(), t.data(), n, hist.data(), false);
+            CHECK(((in_tmp ? t : k) == expect));
+        }
+    }
+    TEST_CASE("evaluate scores a whole set in place: the same value and errors as the accumulator route") {
+        std::mt19937_64 g(29);
+        for (int rep = 0; rep < 8; ++rep) {
+            const std::size_t n = 2 + g() % 400;
+            std::vector<std::uint8_t> y(n);
+            std::vector<float> sf(n);
+            std::vector<double> sd(n), w(n);
+            for (std::size_t i = 0; i < n; ++i) {
+                y[i] = static_cast<std::uint8_t>(g() % 2);
+                // ties, or any finite bit pattern (denormals, huge values, both signs)
+                const float any = std::bit_cast<float>(static_cast<std::uint32_t>(g()));
+                sf[i] = rep % 2 ? static_cast<float>(g() % 4) - 1.5f : (std::isfinite(any) ? any : -0.0f);
+                sd[i] = static_cast<double>(sf[i]) + (rep % 3 == 0 ? 1e-9 * static_cast<double>(g() % 5) : 0.0);
+                w[i] = static_cast<double>(g() % 5) * 0.5;
+            }
+            y[0] = 0;
+            y[1] = 1;
+            w[0] = w[1] = 1;
+            auto route = [&](const auto& m, const auto& s, const std::vector<double>* wt) {
+                auto acc = m.accumulator();
+                if (wt)
+                    acc.add(y, s, *wt);
+                else
+                    acc.add(y, s);
+                return acc.value();
+            };
+            const Eigen::VectorXd se = Eigen::Map<const Eigen::VectorXd>(sd.data(), static_cast<Eigen::Index>(n));
+            CHECK(evaluate(auc{}, y, sf) == route(auc{}, sf, nullptr));
+            CHECK(evaluate(auc{}, y, sd) == route(auc{}, sd, nullptr));
+            CHECK(evaluate(auc{}, y, se) == route(auc{}, sd, nullptr));
+            CHECK(evaluate(auc{}, y, sd, w) == doctest::Approx(route(auc{}, sd, &w)).epsilon(1e-15));
+            CHECK(evaluate(auc{}, y, sf) ==
+                  doctest::Approx(brute_auc(std::vector<int>(y.begin(), y.end()), sf)).epsilon(1e-15));
+            const heldout::measure::average_precision ap;
+            const heldout::measure::partial_auc pa{.fpr_low = 0, .fpr_high = 0.3, .standardized = true};
+            CHECK(evaluate(ap, y, sd) == route(ap, sd, nullptr));
+            CHECK(evaluate(ap, y, sf, w) == doctest::Approx(route(ap, sf, &w)).epsilon(1e-15));
+            CHECK(evaluate(pa, y, sd) == doctest::Approx(route(pa, sd, nullptr)).epsilon(1e-15));
+            CHECK(evaluate(heldout::measure::auprc{}, y, sf) == route(heldout::measure::auprc{}, sf, nullptr));
+        }
+        const std::vector<int> y{1, 0, 1};
+        const std::vector<double> s{0.1, 0.2, 0.3};
+        const std::vector<double> no_weights;
+        CHECK_THROWS_WITH_AS(evaluate(auc{}, y, s, no_weights),
+                             "measure AUC: argument 'weights': size 0 differs from size 3 of 'truth'",
+                             heldout::input_error);
+        CHECK_THROWS_WITH_AS(evaluate(heldout::measure::average_precision{}, y, s, no_weights),
+                             "measure average precision: argument 'weights': size 0 differs from size 3 of 'truth'",
+                             heldout::input_error);
     }
     TEST_CASE("batches, single observations, merges and float/double mixes give the whole-set value") {
         std::mt19937_64 g(7);

@@ -200,6 +200,50 @@ TEST_SUITE("measure/confusion_matrix") {
         }
     }
 
+    TEST_CASE("each clone of the byte-lane cell counter equals a brute-force count; labels >= k are refused") {
+        using heldout::detail::isa;
+        std::mt19937_64 g(71); // test data only
+        auto run = [&](auto k_const) {
+            constexpr std::size_t K = decltype(k_const)::value;
+            for (isa clone : {isa::baseline, isa::avx2}) {
+                if (!heldout::detail::isa_supported(clone))
+                    continue;
+                // block edges of both clones: 255 steps of 16 and of 32 rows
+                for (std::size_t n : {0u, 15u, 16u, 4080u, 4081u, 8160u, 8161u, 30000u}) {
+                    std::vector<std::uint8_t> y(n), f(n);
+                    for (std::size_t i = 0; i < n; ++i) {
+                        y[i] = static_cast<std::uint8_t>(g() % K);
+                        f[i] = static_cast<std::uint8_t>(g() % K);
+                    }
+                    std::vector<std::uint64_t> got(K * K), expect(K * K, 0);
+                    for (std::size_t i = 0; i < n; ++i)
+                        ++expect[y[i] * K + f[i]];
+                    CAPTURE(K);
+                    CAPTURE(n);
+                    CHECK(heldout::detail::count_bytes_small<K>(y.data(), f.data(), n, got.data(), clone));
+                    CHECK(got == expect);
+                    if (n > 100) {
+                        for (std::uint8_t bad : {static_cast<std::uint8_t>(K), std::uint8_t{15}, std::uint8_t{16},
+                                                 std::uint8_t{0x35}, std::uint8_t{255}}) {
+                            auto y2 = y;
+                            y2[n / 2] = bad; // inside a block: counted by no cell, or (>= 16) aliasing one
+                            CHECK_FALSE(
+                                heldout::detail::count_bytes_small<K>(y2.data(), f.data(), n, got.data(), clone));
+                            auto f2 = f;
+                            f2[n - 1] = bad; // in the scalar tail or the last block
+                            CHECK_FALSE(
+                                heldout::detail::count_bytes_small<K>(y.data(), f2.data(), n, got.data(), clone));
+                        }
+                    }
+                }
+            }
+        };
+        run(std::integral_constant<std::size_t, 3>{});
+        run(std::integral_constant<std::size_t, 4>{});
+        run(std::integral_constant<std::size_t, 5>{});
+        run(std::integral_constant<std::size_t, 8>{});
+    }
+
     TEST_CASE("k inferred: the table grows with the labels seen, and merges into the larger k") {
         auto a = confusion_matrix{}.accumulator();
         CHECK(a.classes() == 0);

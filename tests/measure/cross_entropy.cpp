@@ -6,11 +6,13 @@
 #include <Eigen/Dense>
 #include <doctest/doctest.h>
 
+#include <algorithm>
 #include <cmath>
 #include <cstdint>
 #include <limits>
 #include <random>
 #include <span>
+#include <string>
 #include <vector>
 
 using heldout::evaluate;
@@ -102,18 +104,69 @@ TEST_SUITE("measure/cross_entropy") {
         b.add(std::span(y).subspan(h), std::span(p).subspan(h));
         a.merge(b);
         CHECK(heldout_test::close(a.value(), ref.scalar("case3.ce"), 1e-13));
-        c.add_with(heldout::detail::isa::baseline, y, p);
-        d.add_with(heldout::detail::best_isa(), y, p);
-        CHECK(c.value() == d.value());
+        using heldout::detail::isa;
+        c.add_with(isa::baseline, y, p);
         std::vector<float> pf(p.begin(), p.end());
-        auto cf = cross_entropy{}.accumulator(), df = cf;
-        cf.add_with(heldout::detail::isa::baseline, y, pf);
-        df.add_with(heldout::detail::best_isa(), y, pf);
-        CHECK(cf.value() == df.value());
+        auto cf = cross_entropy{}.accumulator();
+        cf.add_with(isa::baseline, y, pf);
+        for (isa clone : {isa::avx2, isa::avx512}) {
+            if (!heldout::detail::isa_supported(clone))
+                continue;
+            const std::string clone_name = heldout::detail::isa_name(clone);
+            CAPTURE(clone_name);
+            auto dc = cross_entropy{}.accumulator(), df = dc;
+            dc.add_with(clone, y, p);
+            df.add_with(clone, y, pf);
+            if (clone == isa::avx2) { // the same arithmetic, more rows an instruction
+                CHECK(c.value() == dc.value());
+                CHECK(cf.value() == df.value());
+            } else { // fused multiply-adds: a few ulp per term
+                CHECK(heldout_test::close(dc.value(), c.value(), 1e-15, 0));
+                CHECK(heldout_test::close(df.value(), cf.value(), 1e-15, 0));
+            }
+        }
+        d.add_with(heldout::detail::best_isa(), y, p);
+        CHECK(heldout_test::close(d.value(), c.value(), 1e-15, 0));
         auto e = cross_entropy{}.accumulator();
         for (std::size_t i = 0; i < y.size(); ++i)
             e.add_one(y[i], p[i]);
         CHECK(heldout_test::close(e.value(), ref.scalar("case3.ce"), 1e-13));
+    }
+    TEST_CASE("every clone's term is within 1 ulp of -log p or -log(1 - p) (long double log / log1p)") {
+        // One row per pass, so the pass's value is the term itself; float predictions are
+        // compared with the reference rounded to float (their log is taken in float).
+        using heldout::detail::isa;
+        std::mt19937_64 g(77);
+        auto term_error = [](isa clone, int y, auto p) {
+            using P = decltype(p);
+            const long double pl = static_cast<long double>(p);
+            const long double ref = y ? -std::log(pl) : -std::log1p(-pl);
+            const std::vector<int> yy{y};
+            const std::vector<P> pp{p};
+            auto a = cross_entropy{}.accumulator();
+            a.add_with(clone, yy, pp);
+            const P r = static_cast<P>(ref);
+            const P ulp = std::nextafter(r, 2 * r + 1) - r;
+            return static_cast<double>(std::fabs(static_cast<long double>(a.value()) - ref) / ulp);
+        };
+        for (isa clone : {isa::baseline, isa::avx2, isa::avx512}) {
+            if (!heldout::detail::isa_supported(clone))
+                continue;
+            double worst = 0, worst_f = 0;
+            for (int i = 0; i < 4000; ++i) {
+                // p spread over many binades, both labels
+                const double p =
+                    std::ldexp(0.5 + 0.5 * static_cast<double>(g() >> 11) * 0x1p-53, -static_cast<int>(g() % 40));
+                const int y = static_cast<int>(g() % 2);
+                worst = std::max(worst, term_error(clone, y, p));
+                worst_f = std::max(worst_f, term_error(clone, y, static_cast<float>(p)));
+            }
+            const std::string clone_name = heldout::detail::isa_name(clone);
+            CAPTURE(clone_name);
+            MESSAGE(clone_name << ": max term error " << worst << " ulp (double), " << worst_f << " ulp (float)");
+            CHECK(worst < 1.0);
+            CHECK(worst_f < 1.0);
+        }
     }
     TEST_CASE("bad input names the measure, the argument and the index; bad eps") {
         std::vector<int> y(600, 0);

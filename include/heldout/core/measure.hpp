@@ -115,8 +115,14 @@ double evaluate(const M& m, const T& truth, const P& prediction) {
     detail::check_prediction_type<M, P>();
     static_assert(scores<M, T, P>, "heldout: this measure cannot score this truth/prediction pairing");
     auto acc = m.accumulator();
-    acc.add(truth, prediction);
-    return acc.value();
+    // A measure whose state carries its rows (the ranking ones) scores a whole set in place
+    // through score_set, without copying it into the state first.
+    if constexpr (requires { acc.score_set(truth, prediction); }) {
+        return acc.score_set(truth, prediction);
+    } else {
+        acc.add(truth, prediction);
+        return acc.value();
+    }
 }
 
 /// Scores a whole set of weighted predictions with measure m.
@@ -126,8 +132,12 @@ double evaluate(const M& m, const T& truth, const P& prediction, const W& weight
     static_assert(scores_weighted<M, T, P, W>, "heldout: this measure cannot score this truth/prediction/weights "
                                                "pairing (weights are a contiguous range of numbers)");
     auto acc = m.accumulator();
-    acc.add(truth, prediction, weights);
-    return acc.value();
+    if constexpr (requires { acc.score_set(truth, prediction, weights); }) {
+        return acc.score_set(truth, prediction, weights);
+    } else {
+        acc.add(truth, prediction, weights);
+        return acc.value();
+    }
 }
 
 HELDOUT_NAMESPACE_END

@@ -66,11 +66,12 @@ inline double key_score(std::uint64_t k) noexcept {
 template <class K>
 inline constexpr int radix_digit_bits = 11;
 
-/// Digit layout of a radix sort over keys K.
-template <class K, int Bits = radix_digit_bits<K>>
+/// Digit layout of a radix sort over the low KeyBits bits of keys K (all bits by default).
+template <class K, int Bits = radix_digit_bits<K>, int KeyBits = static_cast<int>(sizeof(K)) * 8>
 struct radix_layout {
+    static_assert(KeyBits > 0 && KeyBits <= static_cast<int>(sizeof(K)) * 8);
     static constexpr int bits = Bits;
-    static constexpr int passes = (static_cast<int>(sizeof(K)) * 8 + bits - 1) / bits;
+    static constexpr int passes = (KeyBits + bits - 1) / bits;
     static constexpr std::size_t buckets = std::size_t{1} << bits;
     static constexpr K mask = static_cast<K>(buckets - 1);
     static constexpr std::size_t histogram_size = static_cast<std::size_t>(passes) * buckets;
@@ -82,19 +83,13 @@ struct radix_layout {
     }
 };
 
-/// Sorts keys[0, n) ascending and stably, applying the same permutation to payload[0, n).
-/// key_tmp and payload_tmp are scratch of the same length; hist holds
-/// radix_layout<K, Bits>::histogram_size counts, already filled by radix_layout::count over
-/// the keys when `counted` (so the caller's own pass over the data builds them), else
-/// overwritten here. Returns true when the sorted result ended in the scratch buffers,
-/// false when it is in keys/payload. n < 2^32.
-template <int Bits = 0, class K, class P>
-bool radix_sort(K* __restrict keys, K* __restrict key_tmp, P* __restrict payload, P* __restrict payload_tmp,
-                std::size_t n, std::uint32_t* __restrict hist, bool counted) noexcept {
+/// The passes of both sorts below: with Payload, payload[0, n) follows the keys.
+template <int Bits, int KeyBits, bool Payload, class K, class P>
+bool radix_passes(K* __restrict keys, K* __restrict key_tmp, P* __restrict payload, P* __restrict payload_tmp,
+                  std::size_t n, std::uint32_t* __restrict hist, bool counted) noexcept {
     static_assert(std::is_unsigned_v<K>);
-    using layout = radix_layout<K, Bits ? Bits : radix_digit_bits<K>>;
+    using layout = radix_layout<K, Bits, KeyBits>;
     constexpr int bits = layout::bits;
-    constexpr int passes = layout::passes;
     constexpr std::size_t buckets = layout::buckets;
     constexpr K mask = layout::mask;
     if (n < 2)
@@ -104,13 +99,12 @@ bool radix_sort(K* __restrict keys, K* __restrict key_tmp, P* __restrict payload
         for (std::size_t i = 0; i < n; ++i)
             layout::count(hist, keys[i]);
     }
-
     bool in_tmp = false;
     K* src_k = keys;
     K* dst_k = key_tmp;
     P* src_p = payload;
     P* dst_p = payload_tmp;
-    for (int p = 0; p < passes; ++p) {
+    for (int p = 0; p < layout::passes; ++p) {
         std::uint32_t* h = hist + static_cast<std::size_t>(p) * buckets;
         const int shift = p * bits;
         // Constant digit: this pass would not move anything.
@@ -126,13 +120,40 @@ bool radix_sort(K* __restrict keys, K* __restrict key_tmp, P* __restrict payload
             const K k = src_k[i];
             const std::uint32_t pos = h[static_cast<std::size_t>((k >> shift) & mask)]++;
             dst_k[pos] = k;
-            dst_p[pos] = src_p[i];
+            if constexpr (Payload)
+                dst_p[pos] = src_p[i];
         }
         std::swap(src_k, dst_k);
         std::swap(src_p, dst_p);
         in_tmp = !in_tmp;
     }
     return in_tmp;
+}
+
+/// Sorts keys[0, n) ascending and stably, applying the same permutation to payload[0, n).
+/// key_tmp and payload_tmp are scratch of the same length; hist holds
+/// radix_layout<K, Bits>::histogram_size counts, already filled by radix_layout::count over
+/// the keys when `counted` (so the caller's own pass over the data builds them), else
+/// overwritten here. Returns true when the sorted result ended in the scratch buffers,
+/// false when it is in keys/payload. n < 2^32.
+template <int Bits = 0, class K, class P>
+bool radix_sort(K* __restrict keys, K* __restrict key_tmp, P* __restrict payload, P* __restrict payload_tmp,
+                std::size_t n, std::uint32_t* __restrict hist, bool counted) noexcept {
+    return radix_passes < Bits ? Bits : radix_digit_bits<K>, static_cast<int>(sizeof(K)) * 8,
+           true > (keys, key_tmp, payload, payload_tmp, n, hist, counted);
+}
+
+/// Sorts keys[0, n) ascending on their low KeyBits bits (the rest must be zero), without a
+/// payload: for keys that carry their payload in their low bits, such as a float's 32-bit
+/// order key shifted left by one with a 0/1 label below it (33 bits: 3 passes of 11 bits).
+/// Why: one 8-byte scatter stream per pass instead of a 4-byte and a 1-byte one measured
+/// 0.17-0.18x of std::sort of the floats at 1e7 rows instead of 0.21x (2026-12, this VM).
+/// hist as in radix_sort, with radix_layout<K, 11, KeyBits>. Returns true when the result is
+/// in tmp.
+template <int KeyBits, class K>
+bool radix_sort_keys(K* __restrict keys, K* __restrict tmp, std::size_t n, std::uint32_t* __restrict hist,
+                     bool counted) noexcept {
+    return radix_passes<radix_digit_bits<K>, KeyBits, false, K, K>(keys, tmp, nullptr, nullptr, n, hist, counted);
 }
 
 /// The same with its own histogram storage (on the stack: at most 48 KiB).
@@ -224,6 +245,38 @@ struct radix_buffers {
             keys = kt;
             payload = pt;
         }
+    }
+};
+
+/// Keys of a payload-free sort on their low KeyBits bits, with scratch: sort() leaves the
+/// result in keys.
+template <class K, int KeyBits>
+struct radix_key_buffers {
+    using layout = radix_layout<K, radix_digit_bits<K>, KeyBits>;
+    scratch_buffer<K> k0, k1;
+    scratch_buffer<std::uint32_t> h;
+    K* keys = nullptr;             // fill keys[0, n) after prepare(n), read them after sort(n)
+    std::uint32_t* hist = nullptr; // zeroed by prepare(); count each key with layout::count
+
+    radix_key_buffers() = default;
+    radix_key_buffers(const radix_key_buffers&) noexcept {}
+    radix_key_buffers& operator=(const radix_key_buffers&) noexcept {
+        keys = nullptr;
+        hist = nullptr;
+        return *this;
+    }
+    radix_key_buffers(radix_key_buffers&&) noexcept = default;
+    radix_key_buffers& operator=(radix_key_buffers&&) noexcept = default;
+
+    void prepare(std::size_t n) {
+        keys = k0.get(n);
+        hist = h.get(layout::histogram_size);
+        std::fill(hist, hist + layout::histogram_size, 0u);
+    }
+    void sort(std::size_t n) {
+        K* t = k1.get(n);
+        if (radix_sort_keys<KeyBits>(keys, t, n, hist, true))
+            keys = t;
     }
 };
 

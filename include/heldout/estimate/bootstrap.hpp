@@ -16,7 +16,7 @@
 // counts[r] += 1 (multinomial counts). The replicate value is the measure evaluated with
 // the counts as frequency weights (the accumulator's weighted add), which equals the
 // measure on the resampled multiset of rows. Paired: both models get the same counts.
-// (AUC's fast path reads the same draws as ranks instead of rows: see below.)
+// (AUC's fast path reads the same draws as positions in its own order: see below.)
 // A replicate whose value is undefined (e.g. AUC of a resample with one class) is left
 // out and counted in `undefined_replicates`; if fewer than two replicates remain,
 // undefined_error.
@@ -38,10 +38,11 @@
 // The jackknife costs O(n) merges for measures whose accumulator state has fixed size (no
 // vectors in visit_state), else n evaluations of n - 1 rows (O(n^2)).
 // AUC (measure::auc with float/double scores) takes a fast path: heldout::ranked_sample
-// sorts once; replicate b takes the same n draws r = rng(seed,
-// b).below(n) as *ranks* (positions in ascending score order, ties in row order) rather
-// than rows — an equally uniform resample, chosen because counting straight into rank
-// order avoids a random row-to-rank lookup per draw — and scores them in one O(n) integer
+// sorts once; replicate b takes the same n draws r = rng(seed, b).below(n) as *positions in
+// resampling order* rather than rows — ascending score, within a tie group the negatives
+// first, then the positives, each in row order — an equally uniform resample, chosen
+// because counting straight into that order avoids a random row lookup per draw and makes
+// the tie correction a sum over contiguous ranges — and scores them in one O(n) integer
 // pass; the jackknife is closed-form from the tie groups (O(n)). So for AUC the replicate
 // values differ from the by-row draws of other measures with the same seed (same
 // distribution, deterministic). The paired form keeps by-row draws for both models.
@@ -62,6 +63,10 @@
 #include <string_view>
 #include <type_traits>
 #include <vector>
+
+#if defined(__SSE2__) && defined(__x86_64__)
+#include <emmintrin.h>
+#endif
 
 HELDOUT_NAMESPACE_BEGIN
 
@@ -407,19 +412,104 @@ struct resample_engine {
     }
 };
 
+/// The per-row part of the AUC replicate pass for byte counts c and 0/1 positive flags f:
+/// adds sum_pos c_p N(p) to s (N(p): negative count before row p), and the negative and
+/// positive totals to neg and pos, 16 rows at a time with SSE2 (x86-64): the positive and
+/// negative counts are split with a mask, the negatives' exclusive prefix within each 8-row
+/// half is formed in 16-bit lanes (three shift-adds), multiplied into the positives with
+/// pmaddwd, and the negatives of earlier halves enter as N_start times the half's positive
+/// total (psadbw sums). Exact integers throughout: a 32-bit lane gathers at most
+/// 1024 * 2 * 2 * 255 * 1785 < 2^31 before it is flushed. Returns the rows done (a multiple
+/// of 16; 0 elsewhere). The whole replicate pass measured 0.9 -> 0.55 ms at 1e6 rows.
+inline std::size_t byte_count_sums(const std::uint8_t* c, const std::uint8_t* f, std::size_t n, std::uint64_t& s,
+                                   std::uint64_t& neg, std::uint64_t& pos) noexcept {
+    std::size_t i = 0;
+#if defined(__SSE2__) && defined(__x86_64__)
+    const __m128i zero = _mm_setzero_si128();
+    const auto exclusive_prefix = [](__m128i x) {
+        __m128i y = _mm_add_epi16(x, _mm_slli_si128(x, 2));
+        y = _mm_add_epi16(y, _mm_slli_si128(y, 4));
+        y = _mm_add_epi16(y, _mm_slli_si128(y, 8));
+        return _mm_sub_epi16(y, x);
+    };
+    while (n - i >= 16) {
+        const std::size_t steps = std::min<std::size_t>((n - i) / 16, 1024);
+        __m128i acc = zero;
+        for (std::size_t t = 0; t < steps; ++t, i += 16) {
+            const __m128i k = _mm_loadu_si128(reinterpret_cast<const __m128i*>(c + i));
+            const __m128i m = _mm_sub_epi8(zero, _mm_loadu_si128(reinterpret_cast<const __m128i*>(f + i)));
+            const __m128i kp = _mm_and_si128(k, m), kn = _mm_andnot_si128(m, k);
+            const __m128i sp = _mm_sad_epu8(kp, zero), sn = _mm_sad_epu8(kn, zero);
+            acc = _mm_add_epi32(
+                acc, _mm_madd_epi16(_mm_unpacklo_epi8(kp, zero), exclusive_prefix(_mm_unpacklo_epi8(kn, zero))));
+            acc = _mm_add_epi32(
+                acc, _mm_madd_epi16(_mm_unpackhi_epi8(kp, zero), exclusive_prefix(_mm_unpackhi_epi8(kn, zero))));
+            const auto lo = [](__m128i v) { return static_cast<std::uint64_t>(_mm_cvtsi128_si64(v)); };
+            const std::uint64_t p0 = lo(sp), p1 = lo(_mm_unpackhi_epi64(sp, sp));
+            const std::uint64_t n0 = lo(sn), n1 = lo(_mm_unpackhi_epi64(sn, sn));
+            s += neg * p0 + (neg + n0) * p1;
+            neg += n0 + n1;
+            pos += p0 + p1;
+        }
+        alignas(16) std::uint32_t lanes[4];
+        _mm_store_si128(reinterpret_cast<__m128i*>(lanes), acc);
+        s += std::uint64_t{lanes[0]} + lanes[1] + lanes[2] + lanes[3];
+    }
+#else
+    (void)c;
+    (void)f;
+    (void)n;
+    (void)s;
+    (void)neg;
+    (void)pos;
+#endif
+    return i;
+}
+
 /// AUC: sort once (ranked_sample), then one O(n) integer pass per replicate with the counts
-/// drawn straight into rank order; the jackknife in closed form from the tie groups.
+/// drawn straight into resampling order; the jackknife in closed form from the tie groups.
+///
+/// Resampling order: ascending score; within a tie group the negatives first, then the
+/// positives, each in row order. With N(p) the negative count strictly before position p,
+/// for a positive at p every negative before it has a score <= its own, so
+///   2U = sum_g P_g (2 N_below_g + Q_g) = 2 sum_pos c_p N(p) - sum_g P_g Q_g,
+/// where the tie term only involves groups holding both classes (listed once, at build):
+/// per row the pass is a multiply-add and an add, with no group logic.
 template <class T, class P>
 struct auc_resample_engine {
     ranked_sample sample;
-    std::vector<std::uint8_t> flags; // bit 0: positive, bit 1: last of its tie group (by rank)
-    std::vector<std::uint8_t> small;
-    std::vector<std::uint32_t> gathered;
+    std::vector<std::uint32_t> rows;     // original row at each resampling position
+    std::vector<std::uint8_t> positive;  // 1 when the row at that position is a positive
+    std::vector<std::uint32_t> mixed;    // groups with both classes: start, first positive, end
+    std::vector<std::uint8_t> small;     // byte counts of one replicate (zero between replicates)
+    std::vector<std::uint32_t> gathered; // 32-bit counts (rare overflow of a byte; paired form)
 
     auc_resample_engine(const T& t, const P& p, std::string_view who) : sample(make(t, p, who)) {
-        flags.resize(sample.size());
-        for (std::size_t i = 0; i < flags.size(); ++i)
-            flags[i] = static_cast<std::uint8_t>((sample.positive(i) ? 1u : 0u) | (sample.ends_group(i) ? 2u : 0u));
+        const std::size_t n = sample.size();
+        rows.resize(n);
+        positive.resize(n);
+        std::size_t at = 0;
+        for (std::size_t start = 0; start < n;) {
+            std::size_t end = start;
+            while (!sample.ends_group(end))
+                ++end;
+            ++end;
+            const std::size_t group_start = at;
+            for (int label = 0; label < 2; ++label)
+                for (std::size_t i = start; i < end; ++i)
+                    if (sample.positive(i) == (label == 1)) {
+                        rows[at] = sample.row(i);
+                        positive[at] = static_cast<std::uint8_t>(label);
+                        ++at;
+                    }
+            std::size_t first_pos = group_start;
+            while (first_pos < at && positive[first_pos] == 0)
+                ++first_pos;
+            if (first_pos > group_start && first_pos < at)
+                mixed.insert(mixed.end(), {static_cast<std::uint32_t>(group_start),
+                                           static_cast<std::uint32_t>(first_pos), static_cast<std::uint32_t>(at)});
+            start = end;
+        }
     }
     static ranked_sample make(const T& t, const P& p, std::string_view who) {
         auto tv = values_of(t, who, "truth");
@@ -430,62 +520,73 @@ struct auc_resample_engine {
 
     double full() const { return sample.auc(); }
 
-    /// Replicate b: n draws of rng(seed, b).below(n) taken as ranks, counted in bytes (the
-    /// array then stays in cache) and scored in one pass over (count, flags); in the
-    /// astronomically rare case that a count passes 255, counted again in 32 bits and scored
-    /// by ranked_sample::auc_in_rank_order. Both are exact integer arithmetic.
-    bool replicate(std::uint64_t seed, std::uint64_t b, double& out) {
-        const std::size_t n = sample.size();
-        small.resize(n); // all zero between replicates: the scoring pass clears what it reads
-        rng g(seed, b);
-        bool wrapped = false;
-        for (std::size_t i = 0; i < n; ++i) {
-            std::uint8_t& c = small[static_cast<std::size_t>(g.below(n))];
-            ++c;
-            wrapped |= c == 0;
+    /// 2U and the class totals from counts in resampling order; clears the counts when asked
+    /// (the byte counts are kept zero between replicates).
+    template <class C, bool Clear>
+    rank_sum_counts score(C* c) const {
+        const std::size_t n = rows.size();
+        std::uint64_t s = 0, neg = 0, pos = 0;
+        std::size_t i = 0;
+        if constexpr (std::is_same_v<C, std::uint8_t>)
+            i = byte_count_sums(c, positive.data(), n, s, neg, pos);
+        for (; i < n; ++i) {
+            const std::uint64_t k = c[i];
+            const std::uint64_t is_pos = 0 - static_cast<std::uint64_t>(positive[i]);
+            s += (k & is_pos) * neg;
+            neg += k & ~is_pos;
+            pos += k & is_pos;
         }
-        if (wrapped) {
-            std::fill(small.begin(), small.end(), std::uint8_t{0});
-            gathered.resize(n);
-            draw_counts(gathered, seed, b);
-            return with_counts(gathered, out);
+        std::uint64_t ties = 0;
+        for (std::size_t g = 0; g < mixed.size(); g += 3) {
+            std::uint64_t q = 0, p = 0;
+            for (std::uint32_t i = mixed[g]; i < mixed[g + 1]; ++i)
+                q += c[i];
+            for (std::uint32_t i = mixed[g + 1]; i < mixed[g + 2]; ++i)
+                p += c[i];
+            ties += p * q;
         }
-        // The doubled Mann-Whitney U over tie groups, as in ranked_sample (detail/ranks.hpp):
-        // 2U = sum_g p_g (2 N_below + q_g); branch-free on the group-end flag.
-        std::uint64_t u2 = 0, neg_below = 0, gp = 0, gn = 0, pos = 0;
-        for (std::size_t i = 0; i < n; ++i) {
-            const std::uint64_t c = small[i];
-            small[i] = 0;
-            const std::uint8_t f = flags[i];
-            const std::uint64_t is_pos = 0 - static_cast<std::uint64_t>(f & 1u);
-            gp += c & is_pos;
-            gn += c & ~is_pos;
-            const std::uint64_t end = 0 - static_cast<std::uint64_t>((f >> 1) & 1u);
-            u2 += (gp * (2 * neg_below + gn)) & end;
-            neg_below += gn & end;
-            pos += gp & end;
-            gp &= ~end;
-            gn &= ~end;
-        }
-        if (pos == 0 || neg_below == 0)
+        if constexpr (Clear)
+            std::fill(c, c + n, C{0}); // after the tie term, which reads them too
+        return {2 * s - ties, pos, neg};
+    }
+
+    static bool ratio(const rank_sum_counts& r, double& out) {
+        if (r.positives == 0 || r.negatives == 0)
             return false;
-        out = static_cast<double>(static_cast<long double>(u2) /
-                                  (2.0L * static_cast<long double>(pos) * static_cast<long double>(neg_below)));
+        out =
+            static_cast<double>(static_cast<long double>(r.doubled_u) /
+                                (2.0L * static_cast<long double>(r.positives) * static_cast<long double>(r.negatives)));
         return true;
     }
-    bool with_counts(std::span<const std::uint32_t> counts_in_rank_order, double& out) const {
-        const auto v = sample.try_auc_in_rank_order(counts_in_rank_order);
-        if (v)
-            out = *v;
-        return v.has_value();
+
+    /// Replicate b: n draws of rng(seed, b).below(n) taken as resampling positions, counted in
+    /// bytes (the array then stays in cache) and scored in one pass. A count past 255 (odds
+    /// far below 1e-100 per replicate) wraps its byte; the byte counts then sum to less than n,
+    /// which the pass sees for free, and the replicate is counted again in 32 bits. Exact
+    /// integer arithmetic either way.
+    bool replicate(std::uint64_t seed, std::uint64_t b, double& out) {
+        const std::size_t n = sample.size();
+        small.resize(n); // all zero between replicates: score() clears what it read
+        rng g(seed, b);
+        for (std::size_t i = 0; i < n; ++i)
+            ++small[static_cast<std::size_t>(g.below(n))];
+        const auto r = score<std::uint8_t, true>(small.data());
+        if (r.positives + r.negatives == n)
+            return ratio(r, out);
+        gathered.resize(n);
+        draw_counts(gathered, seed, b);
+        return ratio(score<std::uint32_t, false>(gathered.data()), out);
     }
-    /// Counts by original row (the paired form): gathered into rank order.
+    /// Counts by original row (the paired form): gathered into resampling order.
     bool with_row_counts(std::span<const std::uint32_t> counts, double& out) {
         gathered.resize(counts.size());
-        const auto rows = sample.rows();
         for (std::size_t i = 0; i < rows.size(); ++i)
             gathered[i] = counts[rows[i]];
-        return with_counts(gathered, out);
+        const auto r = score<std::uint32_t, false>(gathered.data());
+        // 2U <= 2 m n stays below 2^64 while the total count is below 2^32.
+        if (r.positives + r.negatives > std::numeric_limits<std::uint32_t>::max())
+            fail("heldout::paired_bootstrap", "counts", "total count exceeds 2^32 - 1");
+        return ratio(r, out);
     }
 
     /// Leaving out a positive removes its 2 (negatives below + ties/2) from 2U and one from m;
@@ -646,7 +747,7 @@ struct paired_engine {
         : a(make_engine(m, t, pa, who)), b(make_engine(m, t, pb, who)), rows(prediction_rows(pa)) {}
     double full() { return a.full() - b.full(); }
     std::vector<std::uint32_t> counts;
-    // One by-row draw for both models (an AUC model gathers it into its own rank order).
+    // One by-row draw for both models (an AUC model gathers it into its resampling order).
     bool replicate(std::uint64_t seed, std::uint64_t rep, double& v) {
         counts.resize(rows);
         draw_counts(counts, seed, rep);

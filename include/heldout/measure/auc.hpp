@@ -258,6 +258,23 @@ public:
     void add_one(Y y, S score, double w = 1.0) {
         store_.add_one(eval_.who(), y, score, w);
     }
+    /// The measure of this set alone, computed in place (evaluate's route; the state is untouched).
+    template <label_range T, real_range S>
+    double score_set(const T& truth, const S& scores) const {
+        static_assert(rankable_score_v<element_t<S>>, "heldout: ranking measures take float or double scores");
+        const auto y = values_of(truth, eval_.who(), "truth");
+        const auto s = values_of(scores, eval_.who(), "scores");
+        return eval_(ranked_groups(eval_.who(), s, y, std::span<const double>{}, thread_scratch()), false);
+    }
+    template <label_range T, real_range S, weight_range W>
+    double score_set(const T& truth, const S& scores, const W& weights) const {
+        static_assert(rankable_score_v<element_t<S>>, "heldout: ranking measures take float or double scores");
+        const auto y = values_of(truth, eval_.who(), "truth");
+        const auto s = values_of(scores, eval_.who(), "scores");
+        const auto w = values_of(weights, eval_.who(), "weights");
+        check_same_size(eval_.who(), "weights", y.size(), w.size());
+        return eval_(ranked_groups(eval_.who(), s, y, w, thread_scratch()), true);
+    }
     void merge(const grouped_accumulator& o) {
         if (!(eval_ == o.eval_))
             fail(eval_.who(), "other", "cannot merge accumulators of different parameters");
@@ -305,6 +322,24 @@ public:
     template <std::integral Y, std::floating_point S>
     void add_one(Y y, S score, double w = 1.0) {
         store_.add_one(who(), y, score, w);
+    }
+    /// The exact AUC of this set alone, computed in place (evaluate's route: no copy of the
+    /// rows; the state is untouched).
+    template <label_range T, real_range S>
+    double score_set(const T& truth, const S& scores) const {
+        static_assert(detail::rankable_score_v<element_t<S>>, "heldout: ranking measures take float or double scores");
+        const auto y = values_of(truth, who(), "truth");
+        const auto s = values_of(scores, who(), "scores");
+        return detail::exact_auc(who(), s, y, detail::thread_scratch());
+    }
+    template <label_range T, real_range S, weight_range W>
+    double score_set(const T& truth, const S& scores, const W& weights) const {
+        static_assert(detail::rankable_score_v<element_t<S>>, "heldout: ranking measures take float or double scores");
+        const auto y = values_of(truth, who(), "truth");
+        const auto s = values_of(scores, who(), "scores");
+        const auto w = values_of(weights, who(), "weights");
+        detail::check_same_size(who(), "weights", y.size(), w.size());
+        return detail::exact_weighted_auc(who(), s, y, w, detail::thread_scratch());
     }
     void merge(const auc_accumulator& o) { store_.merge(o.store_); }
 

@@ -19,8 +19,10 @@
 //    results a great deal when p = 0 occurs; report it beside the value.
 // Binary rows are computed in one vectorised pass (detail/fast_log.hpp, < 1 ulp; float
 // predictions take the log in float, < 1 float ulp, and sum in double), with an AVX2
-// clone chosen at run time on x86-64 giving bit-identical results; rows at the clip
-// limits or with p in {0, 1} go through std::log / std::log1p in double.
+// clone chosen at run time on x86-64 giving bit-identical results, and on CPUs with
+// AVX-512 (GCC builds) an AVX-512 clone whose fused multiply-adds make each term agree
+// with the others' to a few ulp instead (the same bits on every run of one machine); rows at
+// the clip limits or with p in {0, 1} go through std::log / std::log1p in double.
 #pragma once
 
 #include <heldout/core/measure.hpp>
@@ -42,6 +44,7 @@ namespace detail {
 template <class T>
 struct log_loss_term : binary_probability_term_base {
     static constexpr bool infinite_ok = true;
+    static constexpr bool wide_pass = true; // one log a row: see detail/pointwise_pass.hpp
     T lo; // rows with p < lo or p > hi take the exact path: the clip limits in T, and 0
     T hi; // and 1 themselves (p = 0 for y = 1 would make the log infinite)
     double eps;
