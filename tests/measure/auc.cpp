@@ -6,6 +6,7 @@
 #include <heldout/measure/average_precision.hpp>
 #include <heldout/measure/partial_auc.hpp>
 
+#include "support/measure_checks.hpp"
 #include "support/reference.hpp"
 
 #include <Eigen/Dense>
@@ -23,6 +24,8 @@
 
 using heldout::evaluate;
 using heldout::measure::auc;
+
+using heldout_test::check_fresh_merges;
 
 namespace {
 // Self-written O(n^2) reference of the Mann–Whitney definition (methods.md §3.1): sum of
@@ -45,56 +48,6 @@ double brute_auc(const std::vector<int>& y, const std::vector<S>& s, const std::
     return static_cast<double>(num / (wp * wn));
 }
 
-// Merges into a fresh accumulator, add_one with a non-unit first weight and a self-merge must
-// keep every row, weight and score: each equals one accumulator fed all the rows in one batch.
-template <class M, class S>
-void check_fresh_merges(const M& m, const std::vector<int>& y, const std::vector<S>& s, const std::vector<double>& w) {
-    const std::size_t n = y.size();
-    const double plain = evaluate(m, y, s), weighted = evaluate(m, y, s, w);
-    auto full = m.accumulator();
-    full.add(y, s);
-    auto fresh = m.accumulator();
-    fresh.merge(full);
-    CHECK(fresh.count() == n);
-    CHECK(fresh.value() == plain);
-    auto wfull = m.accumulator();
-    wfull.add(y, s, w);
-    auto wfresh = m.accumulator();
-    wfresh.merge(wfull);
-    CHECK(wfresh.count() == n);
-    CHECK(wfresh.value() == weighted);
-    wfresh.merge(m.accumulator()); // an empty other changes nothing
-    CHECK(wfresh.count() == n);
-    CHECK(wfresh.value() == weighted);
-    auto one = m.accumulator();
-    for (std::size_t i = 0; i < n; ++i)
-        one.add_one(y[i], s[i], w[i]);
-    CHECK(one.value() == weighted);
-    // an unweighted first shard, then a weighted one, both merged into a fresh accumulator
-    auto h1 = m.accumulator();
-    auto h2 = m.accumulator();
-    h1.add(std::span(y).first(1), std::span(s).first(1));
-    h2.add(std::span(y).subspan(1), std::span(s).subspan(1), std::span(w).subspan(1));
-    auto mixed = m.accumulator();
-    mixed.merge(h1);
-    mixed.merge(h2);
-    std::vector<double> w1(w);
-    w1[0] = 1;
-    CHECK(mixed.value() == evaluate(m, y, s, w1));
-    // self-merge = every row twice
-    std::vector<int> y2(y);
-    y2.insert(y2.end(), y.begin(), y.end());
-    std::vector<S> s2(s);
-    s2.insert(s2.end(), s.begin(), s.end());
-    std::vector<double> w2(w);
-    w2.insert(w2.end(), w.begin(), w.end());
-    full.merge(full);
-    CHECK(full.count() == 2 * n);
-    CHECK(full.value() == evaluate(m, y2, s2));
-    wfull.merge(wfull);
-    CHECK(wfull.count() == 2 * n);
-    CHECK(wfull.value() == evaluate(m, y2, s2, w2));
-}
 } // namespace
 
 TEST_SUITE("measure/auc") {

@@ -2,6 +2,7 @@
 #include <heldout/measure/classification_error.hpp>
 #include <heldout/stream/serialize.hpp>
 
+#include "support/measure_checks.hpp"
 #include "support/reference.hpp"
 
 #include <Eigen/Dense>
@@ -20,18 +21,9 @@ using heldout::evaluate;
 using heldout::measure::accuracy;
 using heldout::measure::classification_error;
 
-namespace {
-// The message of the exception fn throws ("" when it throws none).
-template <class Fn>
-std::string message_of(Fn fn) {
-    try {
-        fn();
-    } catch (const std::exception& e) {
-        return e.what();
-    }
-    return "";
-}
+using heldout_test::message_of;
 
+namespace {
 // deserialize(serialize(a)) holds the same value and the same parameters: the same rows
 // added afterwards give the same value on both, and the same bad label (and the empty
 // accumulator) give the same message, which names the measure.

@@ -2,6 +2,7 @@
 #include <heldout/measure/confusion_matrix.hpp>
 #include <heldout/stream/serialize.hpp>
 
+#include "support/measure_checks.hpp"
 #include "support/reference.hpp"
 
 #include <Eigen/Dense>
@@ -22,18 +23,9 @@ using heldout::evaluate;
 using heldout::measure::confusion_accumulator;
 using heldout::measure::confusion_matrix;
 
-namespace {
-// The message of the exception fn throws ("" when it throws none).
-template <class Fn>
-std::string message_of(Fn fn) {
-    try {
-        fn();
-    } catch (const std::exception& e) {
-        return e.what();
-    }
-    return "";
-}
+using heldout_test::message_of;
 
+namespace {
 // The address of the cells buffer, seen through visit_state: equal addresses across
 // epochs mean the buffer was reused, not reallocated.
 struct cells_address {

@@ -2,6 +2,7 @@
 #include <heldout/measure/precision_recall.hpp>
 #include <heldout/stream/serialize.hpp>
 
+#include "support/measure_checks.hpp"
 #include "support/reference.hpp"
 
 #include <Eigen/Dense>
@@ -21,58 +22,12 @@ using heldout::measure::precision;
 using heldout::measure::recall;
 using heldout::measure::specificity;
 
+using heldout_test::check_bytes_round_trip;
+using heldout_test::expand;
+using heldout_test::expanded;
+using heldout_test::message_of;
+
 namespace {
-// The message of the exception fn throws ("" when it throws none).
-template <class Fn>
-std::string message_of(Fn fn) {
-    try {
-        fn();
-    } catch (const std::exception& e) {
-        return e.what();
-    }
-    return "";
-}
-
-// deserialize(serialize(a)) holds the same value and the same parameters: the same rows
-// added afterwards give the same value on both, and the same bad label (and the empty
-// accumulator) give the same message, which names the measure.
-template <class M, class T, class P>
-void check_bytes_round_trip(const M& m, const T& y, const P& f, const T& y2, const P& f2, int bad_label) {
-    using A = decltype(m.accumulator());
-    auto a = m.accumulator();
-    a.add(y, f);
-    A b = heldout::deserialize<A>(heldout::serialize(a));
-    CHECK(b.value() == a.value());
-    CHECK(b.count() == a.count());
-    a.add(y2, f2);
-    b.add(y2, f2);
-    CHECK(b.value() == a.value());
-    CHECK(heldout::serialize(b) == heldout::serialize(a));
-    const std::string who = "measure " + m.name() + ":";
-    const std::string bad = message_of([&] { a.add_one(bad_label, 0); });
-    CHECK(bad.rfind(who, 0) == 0);
-    CHECK(message_of([&] { b.add_one(bad_label, 0); }) == bad);
-    a.reset();
-    b.reset();
-    const std::string empty = message_of([&] { (void)a.value(); });
-    CHECK(empty.rfind(who, 0) == 0);
-    CHECK(message_of([&] { (void)b.value(); }) == empty);
-}
-
-struct expanded {
-    std::vector<int> truth, prediction;
-};
-// Label vectors that reproduce a confusion table of counts (rows = true class).
-expanded expand(const Eigen::MatrixXd& c) {
-    expanded e;
-    for (Eigen::Index i = 0; i < c.rows(); ++i)
-        for (Eigen::Index j = 0; j < c.cols(); ++j)
-            for (int n = 0; n < static_cast<int>(c(i, j)); ++n) {
-                e.truth.push_back(static_cast<int>(i));
-                e.prediction.push_back(static_cast<int>(j));
-            }
-    return e;
-}
 Eigen::MatrixXd binary_check_table() {
     // TP = 20, FN = 10, FP = 5, TN = 65 (class 1 positive; rows = true class)
     Eigen::MatrixXd b(2, 2);
