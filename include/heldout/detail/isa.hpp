@@ -22,6 +22,16 @@
 HELDOUT_NAMESPACE_BEGIN
 namespace detail {
 
+/// A software prefetch hint for the cache line holding p (never faults, changes no result;
+/// nothing where the compiler has no such builtin).
+HELDOUT_DETAIL_INLINE void prefetch_hint(const void* p) noexcept {
+#if defined(__GNUC__) || defined(__clang__)
+    __builtin_prefetch(p);
+#else
+    (void)p;
+#endif
+}
+
 /// Instruction sets a kernel can be cloned for.
 enum class isa { baseline, avx2, avx512 };
 
