@@ -5,6 +5,7 @@
 #include <heldout/core/random.hpp>
 #include <heldout/measure/average_precision.hpp>
 #include <heldout/measure/partial_auc.hpp>
+#include <heldout/measure/roc_points.hpp>
 
 #include "support/measure_checks.hpp"
 #include "support/reference.hpp"
@@ -16,6 +17,7 @@
 #include <bit>
 #include <cmath>
 #include <cstdint>
+#include <functional>
 #include <limits>
 #include <numeric>
 #include <random>
@@ -171,6 +173,74 @@ TEST_SUITE("measure/auc") {
                 ordered = ordered && s[r.row(i - 1)] <= s[r.row(i)] &&
                           (r.ends_group(i - 1) == (s[r.row(i - 1)] < s[r.row(i)]));
             CHECK(ordered);
+        }
+    }
+    TEST_CASE("double keys split by fitted exponent codes: signs, zeros, subnormals, extremes, one exponent, "
+              "thousands of exponents, widened floats, long tied runs") {
+        // The fitted split of detail::double_split (code of sign and exponent, leading mantissa
+        // bits, rest) must order like the scores and keep equal scores exactly together in
+        // every regime of code widths: checked against std::sort of the scores, the O(n^2)
+        // loop and the thresholds of roc_points (which rebuild each score from its split key).
+        constexpr double dmax = std::numeric_limits<double>::max();
+        constexpr double tiny = std::numeric_limits<double>::denorm_min();
+        constexpr double low = std::numeric_limits<double>::min();
+        const std::vector<double> pool{-dmax, -1e300, -2.5, -1,       -low, -3 * tiny, -tiny,
+                                       -0.0,  0.0,    tiny, 3 * tiny, low,  0.1,       std::nextafter(0.1, 1.0),
+                                       1,     1e300,  dmax};
+        std::mt19937_64 g(77);
+        const auto unit = [&] { return static_cast<double>(g() >> 11) * 0x1p-53; };
+        for (int family = 0; family < 6; ++family) {
+            const std::size_t n = family == 5 ? 3000 : 1500;
+            std::vector<int> y(n);
+            std::vector<double> s(n);
+            for (std::size_t i = 0; i < n; ++i) {
+                y[i] = static_cast<int>(g() % 2);
+                switch (family) {
+                case 0: // special values and their neighbours, ties among them
+                    s[i] =
+                        g() % 2 ? pool[g() % pool.size()] : (unit() - 0.5) * std::ldexp(1.0, static_cast<int>(g() % 9));
+                    break;
+                case 1: // over 2048 sign-and-exponent values: 12 code bits, 20 mantissa bits in the key
+                    s[i] = (g() % 2 ? -1 : 1) * std::ldexp(1 + unit(), static_cast<int>(g() % 2041) - 1020);
+                    break;
+                case 2: // one exponent, differing in the last bits only: one long run refined by the rest
+                    s[i] = 1 + static_cast<double>(g() % 700 + (y[i] ? 50 : 0)) * 0x1p-52;
+                    break;
+                case 3: // floats widened to double: no rest bits, runs are ties
+                    s[i] = static_cast<double>(static_cast<float>(unit() * (y[i] ? 1.2 : 1.0)));
+                    if (g() % 4 == 0)
+                        s[i] = 0.25;
+                    break;
+                case 4: // few distinct values with rest bits: long tied runs (equal rests)
+                    s[i] = static_cast<double>(g() % 40 + (y[i] ? 3 : 0)) / 1000.0;
+                    break;
+                default: // signed, continuous, with exact zeros (a zero code between the signs)
+                    s[i] = g() % 50 == 0 ? 0.0 : std::log(unit() / (1 - unit() + 1e-300) + 1e-300);
+                    break;
+                }
+            }
+            y[0] = 0;
+            y[1] = 1;
+            CAPTURE(family);
+            CHECK(evaluate(auc{}, y, s) == doctest::Approx(brute_auc(y, s)).epsilon(1e-15));
+            heldout::ranked_sample r(y, s);
+            bool ordered = true;
+            for (std::size_t i = 1; i < n; ++i)
+                ordered = ordered && s[r.row(i - 1)] <= s[r.row(i)] &&
+                          (r.ends_group(i - 1) == (s[r.row(i - 1)] < s[r.row(i)]));
+            CHECK(ordered);
+            std::vector<double> distinct(s.begin(), s.end());
+            for (double& x : distinct)
+                x += 0.0; // -0 and +0 are one score
+            std::sort(distinct.begin(), distinct.end(), std::greater<>());
+            distinct.erase(std::unique(distinct.begin(), distinct.end()), distinct.end());
+            const auto pts = heldout::roc_points(y, s);
+            REQUIRE(pts.size() == distinct.size() + 1);
+            bool thresholds = true;
+            for (std::size_t i = 0; i < distinct.size(); ++i)
+                thresholds = thresholds && std::bit_cast<std::uint64_t>(pts[i + 1].threshold) ==
+                                               std::bit_cast<std::uint64_t>(distinct[i]);
+            CHECK(thresholds);
         }
     }
     TEST_CASE("radix sort property: same order as std::stable_sort, payload carried, all passes and skips") {

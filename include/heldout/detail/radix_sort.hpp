@@ -14,7 +14,8 @@
 // passes; 64-bit keys: 6 passes). One read pass first builds the histograms of every digit
 // (callers fuse it into their key-making pass); a pass whose digit is the same for every key
 // (all counts in one bucket) is skipped. Double scores are normally not sorted on 64-bit keys:
-// detail/ranks.hpp sorts them on the high 32 bits and refines runs by the low half.
+// detail/ranks.hpp sorts them on a fitted 32-bit key (8-bit digits) and orders the runs of
+// equal keys by the rest of the score.
 #pragma once
 
 #include <heldout/core/config.hpp>
@@ -210,9 +211,10 @@ private:
 };
 
 /// Keys and payloads of one sort, with their scratch: sort() leaves the result in key()/payload().
-template <class K, class P>
+/// Bits: the digit width (see radix_digit_bits).
+template <class K, class P, int Bits = radix_digit_bits<K>>
 struct radix_buffers {
-    using layout = radix_layout<K>;
+    using layout = radix_layout<K, Bits>;
     scratch_buffer<K> k0, k1;
     scratch_buffer<P> p0, p1;
     scratch_buffer<std::uint32_t> h;
@@ -241,7 +243,7 @@ struct radix_buffers {
     void sort(std::size_t n) {
         K* kt = k1.get(n);
         P* pt = p1.get(n);
-        if (radix_sort(keys, kt, payload, pt, n, hist, true)) {
+        if (radix_sort<Bits>(keys, kt, payload, pt, n, hist, true)) {
             keys = kt;
             payload = pt;
         }

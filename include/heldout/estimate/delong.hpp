@@ -134,35 +134,57 @@ inline void check_delong_counts(std::string_view who, std::uint64_t m, std::uint
                                 " and " + std::to_string(n) + ")");
 }
 
-/// The rows of a sorted order are a random permutation of the cases, so writing or reading a
-/// per-case array in that order misses the cache every time; a hint this many rows ahead
-/// lets the misses overlap (delong_test on 1e6 cases: about 3.4 -> 3.1 times one AUC).
+/// The rows of a sorted order are a random permutation of the cases, so writing a per-case
+/// array in that order misses the cache every time; a hint this many rows ahead lets the
+/// misses overlap (delong_test on 1e6 cases: about 3.4 -> 3.1 times one AUC).
 inline constexpr std::size_t row_prefetch = 16;
 
-/// Walks the tie groups of sorted rows with m positives and nn negatives: for each group of
-/// ranks [i, j) calls f(i, j, gp, gn, v10, v01), where v10 = (negatives below + ties / 2) / nn
-/// is the structural component of its positives and v01 = (positives above + ties / 2) / m
-/// that of its negatives (doubled counts are exact integers; one multiplication rounds
-/// once). Returns the doubled Mann-Whitney U.
-template <class T, class F>
+/// A tie group of ranks [first, last) in a DeLong walk: its positives and negatives, the
+/// doubled counts c10 = 2 #(negatives below) + negatives in the group (V10 = c10 / (2 n) for
+/// its positives) and c01 = 2 #(positives above) + positives in the group (V01 = c01 / (2 m)
+/// for its negatives), and those components (one multiplication of an exact integer: they
+/// round once).
+struct delong_group {
+    std::size_t first = 0, last = 0;
+    std::uint64_t positives = 0, negatives = 0, c10 = 0, c01 = 0;
+    double v10 = 0, v01 = 0;
+};
+
+/// The label of a default tag (row | label << 31).
+struct tag_label {
+    std::uint64_t operator()(std::uint32_t tag) const noexcept { return tag >> 31; }
+};
+
+/// Walks the tie groups of sorted rows with m positives and nn negatives, calling
+/// f(delong_group) for each; label_of(tag) gives a tag's 0/1 label. Returns the doubled
+/// Mann-Whitney U.
+template <class T, class F, class Label = tag_label>
 HELDOUT_DETAIL_INLINE std::uint64_t walk_delong_groups(const sorted_rows<T>& sr, std::uint64_t m, std::uint64_t nn,
-                                                       F&& f) {
+                                                       F&& f, Label label_of = {}) {
     const double inv2n = nn ? 0.5 / static_cast<double>(nn) : 0.0;
     const double inv2m = m ? 0.5 / static_cast<double>(m) : 0.0;
     std::uint64_t u2 = 0, neg_below = 0, pos_below = 0;
     const std::size_t n = sr.n;
+    delong_group g;
     std::size_t i = 0;
     while (i < n) {
         std::size_t j = i;
         std::uint64_t gp = 0;
-        do
-            gp += sr.at(j++) >> 31;
-        while (j < n && sr.same(j));
+        do {
+            prefetch_ahead(sr, j);
+            gp += label_of(sr.at(j++));
+        } while (j < n && sr.same(j));
         const std::uint64_t gn = (j - i) - gp;
-        const double v10 = static_cast<double>(2 * neg_below + gn) * inv2n;
-        const double v01 = static_cast<double>(2 * (m - pos_below - gp) + gp) * inv2m;
-        f(i, j, gp, gn, v10, v01);
-        u2 += gp * (2 * neg_below + gn);
+        g.first = i;
+        g.last = j;
+        g.positives = gp;
+        g.negatives = gn;
+        g.c10 = 2 * neg_below + gn;
+        g.c01 = 2 * (m - pos_below - gp) + gp;
+        g.v10 = static_cast<double>(g.c10) * inv2n;
+        g.v01 = static_cast<double>(g.c01) * inv2m;
+        f(static_cast<const delong_group&>(g));
+        u2 += gp * g.c10;
         neg_below += gn;
         pos_below += gp;
         i = j;
@@ -170,12 +192,11 @@ HELDOUT_DETAIL_INLINE std::uint64_t walk_delong_groups(const sorted_rows<T>& sr,
     return u2;
 }
 
-/// Calls f(row, label) for the sorted ranks [i, j), with a prefetch hint for the per-case
-/// array `cases` row_prefetch ranks ahead.
-template <class T, class F>
-HELDOUT_DETAIL_INLINE void visit_ranks(const sorted_rows<T>& sr, std::size_t i, std::size_t j, const double* cases,
-                                       F&& f) {
-    for (std::size_t t = i; t < j; ++t) {
+/// Calls f(row, label) for the ranks of a group (default tags), with a prefetch hint for the
+/// per-case array `cases` row_prefetch ranks ahead.
+template <class T, class C, class F>
+HELDOUT_DETAIL_INLINE void visit_ranks(const sorted_rows<T>& sr, const delong_group& g, const C* cases, F&& f) {
+    for (std::size_t t = g.first; t < g.last; ++t) {
         const std::uint32_t p = sr.at(t);
         if (t + row_prefetch < sr.n)
             prefetch_hint(cases + (sr.at(t + row_prefetch) & ~label_bit));
@@ -183,23 +204,17 @@ HELDOUT_DETAIL_INLINE void visit_ranks(const sorted_rows<T>& sr, std::size_t i, 
     }
 }
 
-/// One model: sorts, writes V10 (positives) / V01 (negatives) into v[row], returns doubled U
-/// and the class counts.
+/// One model of the k-model route: sorts, writes V10 (positives) / V01 (negatives) into
+/// v[row], returns doubled U and the class counts.
 template <class T, class L>
 rank_sum_counts delong_components(std::string_view who, std::string_view arg, std::span<const L> y,
                                   std::span<const T> s, rank_scratch& sc, double* v) {
     const auto sr = sort_rows(who, s, y, sc, arg);
-    const std::size_t n = sr.n;
-    // Class totals first (V01 needs the positives above each group).
-    std::uint64_t m = 0;
-    for (std::size_t i = 0; i < n; ++i)
-        m += sr.at(i) >> 31;
-    const std::uint64_t nn = n - m;
-    const std::uint64_t u2 = walk_delong_groups(
-        sr, m, nn, [&](std::size_t i, std::size_t j, std::uint64_t, std::uint64_t, double v10, double v01) {
-            const double vv[2] = {v01, v10}; // no branch on the class (see delong_pair)
-            visit_ranks(sr, i, j, v, [&](std::uint32_t row, std::uint32_t pos) { v[row] = vv[pos]; });
-        });
+    const std::uint64_t m = sr.positives, nn = sr.n - m;
+    const std::uint64_t u2 = walk_delong_groups(sr, m, nn, [&](const delong_group& g) {
+        const double vv[2] = {g.v01, g.v10}; // no branch on the class (see delong_pair)
+        visit_ranks(sr, g, v, [&](std::uint32_t row, std::uint32_t pos) { v[row] = vv[pos]; });
+    });
     return {u2, m, nn};
 }
 
@@ -262,17 +277,19 @@ auc_covariance delong_core(std::string_view who, std::span<const L> y, std::span
     return out;
 }
 
-/// The DeLong variance of AUC(a) - AUC(b) without the k-model route: model a's structural
-/// components go to their rows; model b is sorted and walked once by tie group, reading a's
-/// component of each row, so e = V_a - V_b is formed per row and only the sums of e and e^2
-/// are kept (per class, plain partials in blocks with compensated totals). With
-/// delta = A_a - A_b, the mean of e over each class, the centred sum is
+/// The DeLong variance of AUC(a) - AUC(b) without the k-model route. Model a is sorted and
+/// walked once, writing for each row the doubled count of its structural component with its
+/// class folded in: c10 for a positive (at most 2 n), 2 n + 1 + c01 for a negative (at most
+/// 2 n + 2 m + 1 < 2^32 rows allowed). Model b is then sorted carrying that code as the rows'
+/// tag, so its walk reads a's component in order (no per-row lookups: that pass went from 6.6
+/// to about 1.5 ms at 1e6 rows) and forms e = V_a - V_b per row; only the sums of e and e^2 are
+/// kept (per class, plain partials in blocks with compensated totals). With delta = A_a - A_b,
+/// the mean of e over each class, the centred sum is
 ///   sum (e - delta)^2 = sum e^2 - delta (2 sum e - count delta),
 /// taken in long double; e is centred near delta already (both V's are near their AUCs), so
 /// the subtraction loses at most about log10(delta^2 / var(e)) digits of the ~19 (a 0.4 AUC
-/// gap over a per-case spread of 0.03 loses 2). Saves the second scatter, the covariance pass
-/// and b's separate rank-sum scan: delong_test on 1e6 double cases went from about 3.5 to
-/// 2.4-2.9 times one AUC (run-to-run spread, 2026-12).
+/// gap over a per-case spread of 0.03 loses 2). V_a is the same product as in the k-model
+/// route (code times 1 / (2 n) or 1 / (2 m)), so the two agree to rounding of the sums.
 struct pair_variance {
     double auc_a = 0, auc_b = 0, variance = 0;
 };
@@ -280,32 +297,43 @@ struct pair_variance {
 template <class T, class L>
 pair_variance delong_pair(std::string_view who, std::span<const L> y, std::span<const T> sa, std::span<const T> sb) {
     auto& sc = thread_scratch();
-    double* const va = sc.values.get(y.size());
-    const auto ca = delong_components(who, "scores_a", y, sa, sc, va);
-    check_delong_counts(who, ca.positives, ca.negatives);
-    const std::uint64_t m = ca.positives, nn = ca.negatives;
+    std::uint32_t* const code = sc.counts.get(y.size());
+    const auto ra = sort_rows(who, sa, y, sc, "scores_a");
+    const std::uint64_t m = ra.positives, nn = ra.n - m;
+    check_delong_counts(who, m, nn);
+    const std::uint64_t two_nn = 2 * nn;
+    const std::uint64_t u2a = walk_delong_groups(ra, m, nn, [&](const delong_group& g) {
+        const std::uint32_t cc[2] = {static_cast<std::uint32_t>(two_nn + 1 + g.c01), static_cast<std::uint32_t>(g.c10)};
+        visit_ranks(ra, g, code, [&](std::uint32_t row, std::uint32_t pos) { code[row] = cc[pos]; });
+    });
     const auto auc_of = [&](std::uint64_t u2) {
         return static_cast<double>(static_cast<long double>(u2) / (2.0L * static_cast<long double>(m) * nn));
     };
-    const auto sr = sort_rows(who, sb, y, sc, "scores_b");
+    const auto sr = sort_rows(who, sb, y, sc, "scores_b", [code](std::size_t i, std::uint32_t) { return code[i]; });
+    const auto label_of = [two_nn](std::uint32_t c) { return static_cast<std::uint64_t>(c <= two_nn); };
+    // V_a of a code: (code - offset) * scale, by class (a two-entry table: no branch).
+    const std::uint64_t offset[2] = {two_nn + 1, 0};
+    const double scale[2] = {0.5 / static_cast<double>(m), 0.5 / static_cast<double>(nn)};
     compensated_sum e10, e01, q10, q01; // sum e, sum e^2 by class
     double be10 = 0, be01 = 0, bq10 = 0, bq01 = 0;
     std::size_t in_block = 0;
-    const std::uint64_t u2 = walk_delong_groups(
-        sr, m, nn, [&](std::size_t i, std::size_t j, std::uint64_t, std::uint64_t, double v10, double v01) {
+    const std::uint64_t u2b = walk_delong_groups(
+        sr, m, nn,
+        [&](const delong_group& g) {
             // No branch on the class (a coin flip in score order, mispredicted half the time):
-            // a two-entry table and both sums weighted 1 and 0 (exact). The pass went from 9.8
-            // to 6.6 ms at 1e6 rows.
-            const double vv[2] = {v01, v10};
-            visit_ranks(sr, i, j, va, [&](std::uint32_t row, std::uint32_t pos) {
-                const double e = va[row] - vv[pos];
-                const double w = static_cast<double>(static_cast<int>(pos));
+            // two-entry tables and both sums weighted 1 and 0 (exact).
+            const double vv[2] = {g.v01, g.v10};
+            for (std::size_t t = g.first; t < g.last; ++t) {
+                const std::uint32_t c = sr.at(t);
+                const std::size_t pos = c <= two_nn;
+                const double e = static_cast<double>(c - offset[pos]) * scale[pos] - vv[pos];
+                const double w = static_cast<double>(pos);
                 be10 += w * e;
                 bq10 += w * (e * e);
                 be01 += (1.0 - w) * e;
                 bq01 += (1.0 - w) * (e * e);
-            });
-            in_block += j - i;
+            }
+            in_block += g.last - g.first;
             if (in_block >= block_rows) {
                 e10.add(be10);
                 q10.add(bq10);
@@ -314,14 +342,15 @@ pair_variance delong_pair(std::string_view who, std::span<const L> y, std::span<
                 be10 = be01 = bq10 = bq01 = 0;
                 in_block = 0;
             }
-        });
+        },
+        label_of);
     e10.add(be10);
     q10.add(bq10);
     e01.add(be01);
     q01.add(bq01);
     pair_variance out;
-    out.auc_a = auc_of(ca.doubled_u);
-    out.auc_b = auc_of(u2);
+    out.auc_a = auc_of(u2a);
+    out.auc_b = auc_of(u2b);
     const long double delta = static_cast<long double>(out.auc_a) - out.auc_b;
     const auto centred = [&](const compensated_sum& se, const compensated_sum& sq, std::uint64_t count) {
         const long double q =
@@ -355,12 +384,11 @@ auc_estimate delong_auc(const T& truth, const S& scores, double level = 0.95,
     const double a =
         static_cast<double>(static_cast<long double>(r.doubled_u) / (2.0L * static_cast<long double>(m) * nn));
     detail::compensated_sum s10, s01;
-    detail::walk_delong_groups(
-        sr, m, nn, [&](std::size_t, std::size_t, std::uint64_t gp, std::uint64_t gn, double v10, double v01) {
-            const double d10 = v10 - a, d01 = v01 - a;
-            s10.add(static_cast<double>(gp) * d10 * d10);
-            s01.add(static_cast<double>(gn) * d01 * d01);
-        });
+    detail::walk_delong_groups(sr, m, nn, [&](const detail::delong_group& g) {
+        const double d10 = g.v10 - a, d01 = g.v01 - a;
+        s10.add(static_cast<double>(g.positives) * d10 * d10);
+        s01.add(static_cast<double>(g.negatives) * d01 * d01);
+    });
     const double md = static_cast<double>(m), nd = static_cast<double>(nn);
     const double var = s10.value() / (md - 1) / md + s01.value() / (nd - 1) / nd;
     if (!(var > 0))
