@@ -209,6 +209,8 @@ int main(int argc, char** argv) {
         benchmark::RegisterBenchmark("auc_float_u8_reused", auc_reused)->Arg(n)->Unit(benchmark::kMillisecond);
         benchmark::RegisterBenchmark("sort_double", sort_baseline<double>)->Arg(n)->Unit(benchmark::kMillisecond);
         benchmark::RegisterBenchmark("auc_double_u8", auc_evaluate<double, 0>)->Arg(n)->Unit(benchmark::kMillisecond);
+        benchmark::RegisterBenchmark("auc_double_int", auc_evaluate<double, 1>)->Arg(n)->Unit(benchmark::kMillisecond);
+        benchmark::RegisterBenchmark("auc_double_bool", auc_evaluate<double, 2>)->Arg(n)->Unit(benchmark::kMillisecond);
     }
     for (std::int64_t n : {std::int64_t{1'000'000}}) {
         benchmark::RegisterBenchmark("delong_base_auc_double", auc_double_one)->Arg(n)->Unit(benchmark::kMillisecond);
@@ -229,7 +231,8 @@ int main(int argc, char** argv) {
         k += std::to_string(n);
         for (const char* a : {"auc_float_u8", "auc_float_int", "auc_float_bool", "auc_float_u8_reused"})
             ratio(a + k, "sort_float" + k);
-        ratio("auc_double_u8" + k, "sort_double" + k);
+        for (const char* a : {"auc_double_u8", "auc_double_int", "auc_double_bool"})
+            ratio(a + k, "sort_double" + k);
     }
     ratio("delong_test/1000000", "delong_base_auc_double/1000000");
     ratio("delong_auc/1000000", "delong_base_auc_double/1000000");
