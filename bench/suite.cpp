@@ -105,68 +105,48 @@ const label_data& labels(unsigned k) {
 
 // ---------------------------------------------------------------- baselines (our own, small)
 
-/// Plain multi-lane sum of (y - f)^2: 16 float lanes flushed into double every 4096 rows,
-/// no checks, no compensation — what a hand-written MSE loop that reads at memory speed does.
+/// The shape of every plain baseline here: term(i) summed in 16 float lanes flushed into
+/// double every 4096 rows, no checks, no compensation — what a hand-written loop that reads at
+/// memory speed does.
+template <class Term>
+double plain_lane_sum(std::size_t n, Term term) {
+    double total = 0;
+    for (std::size_t start = 0; start < n; start += 4096) {
+        const std::size_t end = std::min(n, start + 4096);
+        std::array<float, 16> lane{};
+        std::size_t i = start;
+        for (; i + 16 <= end; i += 16)
+            for (std::size_t j = 0; j < 16; ++j)
+                lane[j] += term(i + j);
+        for (; i < end; ++i)
+            lane[0] += term(i);
+        double s = 0;
+        for (float v : lane)
+            s += v;
+        total += s;
+    }
+    return total;
+}
+
+/// Plain MSE: the lane sum of (y - f)^2 over n.
 double plain_sum_squares(const float* y, const float* f, std::size_t n) {
-    double total = 0;
-    for (std::size_t start = 0; start < n; start += 4096) {
-        const std::size_t end = std::min(n, start + 4096);
-        std::array<float, 16> lane{};
-        std::size_t i = start;
-        for (; i + 16 <= end; i += 16)
-            for (std::size_t j = 0; j < 16; ++j) {
-                const float e = y[i + j] - f[i + j];
-                lane[j] += e * e;
-            }
-        for (; i < end; ++i)
-            lane[0] += (y[i] - f[i]) * (y[i] - f[i]);
-        double s = 0;
-        for (float v : lane)
-            s += v;
-        total += s;
-    }
-    return total / static_cast<double>(n);
+    return plain_lane_sum(n,
+                          [y, f](std::size_t i) {
+                              const float e = y[i] - f[i];
+                              return e * e;
+                          }) /
+           static_cast<double>(n);
 }
 
-/// Plain multi-lane sum over a byte array and a float array (the read limit for log loss).
+/// Plain sum over a byte array and a float array (the read limit for log loss).
 double plain_sum_bytes_floats(const std::uint8_t* t, const float* p, std::size_t n) {
-    double total = 0;
-    for (std::size_t start = 0; start < n; start += 4096) {
-        const std::size_t end = std::min(n, start + 4096);
-        std::array<float, 16> lane{};
-        std::size_t i = start;
-        for (; i + 16 <= end; i += 16)
-            for (std::size_t j = 0; j < 16; ++j)
-                lane[j] += p[i + j] + static_cast<float>(t[i + j]);
-        for (; i < end; ++i)
-            lane[0] += p[i] + static_cast<float>(t[i]);
-        double s = 0;
-        for (float v : lane)
-            s += v;
-        total += s;
-    }
-    return total;
+    return plain_lane_sum(n, [t, p](std::size_t i) { return p[i] + static_cast<float>(t[i]); });
 }
 
-/// Plain multi-lane sum over two float arrays (the read limit for MSE: the plain-sum
-/// baseline, as in bench_pointwise).
+/// Plain sum over two float arrays (the read limit for MSE: the plain-sum baseline, as
+/// in bench_pointwise).
 double plain_sum_floats(const float* y, const float* f, std::size_t n) {
-    double total = 0;
-    for (std::size_t start = 0; start < n; start += 4096) {
-        const std::size_t end = std::min(n, start + 4096);
-        std::array<float, 16> lane{};
-        std::size_t i = start;
-        for (; i + 16 <= end; i += 16)
-            for (std::size_t j = 0; j < 16; ++j)
-                lane[j] += y[i + j] + f[i + j];
-        for (; i < end; ++i)
-            lane[0] += y[i] + f[i];
-        double s = 0;
-        for (float v : lane)
-            s += v;
-        total += s;
-    }
-    return total;
+    return plain_lane_sum(n, [y, f](std::size_t i) { return y[i] + f[i]; });
 }
 
 /// The textbook log loss: two logs per row in double.

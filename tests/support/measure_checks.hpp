@@ -34,18 +34,20 @@ inline std::string message_of(Fn fn) {
 }
 
 // deserialize(serialize(a)) holds the same value and the same parameters: the same rows
-// added afterwards give the same value on both, and the same bad label (and the empty
-// accumulator) give the same message, which names the measure.
-template <class M, class T, class P>
-void check_bytes_round_trip(const M& m, const T& y, const P& f, const T& y2, const P& f2, int bad_label) {
+// added afterwards (y2, f2 and, if given, their weights) give the same value on both, and the
+// same bad label (and the empty accumulator) give the same message, which names the measure.
+// Returns the empty accumulator's message, for callers that check its wording.
+template <class M, class T, class P, class... Weights>
+std::string check_bytes_round_trip(const M& m, const T& y, const P& f, const T& y2, const P& f2, int bad_label,
+                                   const Weights&... w2) {
     using A = decltype(m.accumulator());
     auto a = m.accumulator();
     a.add(y, f);
     A b = heldout::deserialize<A>(heldout::serialize(a));
     CHECK(b.value() == a.value());
     CHECK(b.count() == a.count());
-    a.add(y2, f2);
-    b.add(y2, f2);
+    a.add(y2, f2, w2...);
+    b.add(y2, f2, w2...);
     CHECK(b.value() == a.value());
     CHECK(heldout::serialize(b) == heldout::serialize(a));
     const std::string who = "measure " + m.name() + ":";
@@ -57,6 +59,7 @@ void check_bytes_round_trip(const M& m, const T& y, const P& f, const T& y2, con
     const std::string empty = message_of([&] { (void)a.value(); });
     CHECK(empty.rfind(who, 0) == 0);
     CHECK(message_of([&] { (void)b.value(); }) == empty);
+    return empty;
 }
 
 struct expanded {
