@@ -1,6 +1,7 @@
 // heldout/detail/isa.hpp — the instruction sets hot kernels are cloned for, and the run-time
 // choice among them (x86-64 with GCC or Clang; elsewhere only the baseline exists).
-// Internal: used by detail/pointwise_pass.hpp and measure/confusion_matrix.hpp.
+// Internal: used by detail/pointwise_pass.hpp, detail/ranks.hpp, estimate/delong.hpp and
+// measure/confusion_matrix.hpp.
 //
 //   if (heldout::detail::best_isa() == heldout::detail::isa::avx2) kernel_avx2(...);
 //
@@ -10,6 +11,8 @@
 #pragma once
 
 #include <heldout/core/config.hpp>
+
+#include <cstddef>
 
 // Hot kernels are instantiated in each clone; forcing the inlining keeps them whole inside
 // each clone (an out-of-line helper would be compiled for the baseline only).
@@ -30,6 +33,18 @@ HELDOUT_DETAIL_INLINE void prefetch_hint(const void* p) noexcept {
 #else
     (void)p;
 #endif
+}
+
+/// A software prefetch hint for each cache line of rows [from, to) of an array. Why: on this
+/// kind of VM the hardware prefetcher left compute-bound passes waiting on memory — the
+/// double log-loss pass cost 5.5 ns a row at 1e7 rows without hints and 2.0 ns with them
+/// (1.6 ns at 1e6; measured 2026-12) — and a hint never faults or changes a result.
+template <class T>
+HELDOUT_DETAIL_INLINE void prefetch_rows(const T* a, std::size_t from, std::size_t to) noexcept {
+    const char* b = reinterpret_cast<const char*>(a + from);
+    const char* const e = reinterpret_cast<const char*>(a + to);
+    for (; b < e; b += 64)
+        prefetch_hint(b);
 }
 
 /// Instruction sets a kernel can be cloned for.

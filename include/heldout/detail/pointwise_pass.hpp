@@ -153,18 +153,6 @@ inline constexpr std::size_t pass_lanes = 8;
 /// Chunks ahead that a pass asks the memory system for (see prefetch_rows).
 inline constexpr std::size_t pass_prefetch_ahead = 2;
 
-/// A software prefetch hint for each cache line of rows [from, to) of an array. Why: on this
-/// kind of VM the hardware prefetcher left compute-bound passes waiting on memory — the
-/// double log-loss pass cost 5.5 ns a row at 1e7 rows without hints and 2.0 ns with them
-/// (1.6 ns at 1e6; measured 2026-12) — and a hint never faults or changes a result.
-template <class T>
-HELDOUT_DETAIL_INLINE void prefetch_rows(const T* a, std::size_t from, std::size_t to) noexcept {
-    const char* b = reinterpret_cast<const char*>(a + from);
-    const char* const e = reinterpret_cast<const char*>(a + to);
-    for (; b < e; b += 64)
-        prefetch_hint(b);
-}
-
 /// One pass over rows [0, n). Term provides:
 ///   template <class Y, class P> using truth_buffer   the type integer truth is converted to
 ///   R fast(TY y, P p) const       vectorisable; valid where flag(...) == 0

@@ -330,13 +330,10 @@ HELDOUT_DETAIL_INLINE void prefetch_ahead(const R& r, std::size_t i) noexcept {
 
 /// Orders each run of equal keys by its payloads (see sorted_rows<double>).
 inline void refine_runs(const std::uint32_t* hi, std::uint64_t* pay, std::size_t n) {
+    const sorted_rows<double> ahead{hi, pay, n}; // for its prefetch hints: runs are everywhere
     std::size_t i = 0;
     while (i < n) {
-        if ((i & 15) == 0 && i + scan_prefetch + 16 <= n) { // payloads too: runs are everywhere
-            prefetch_hint(hi + i + scan_prefetch);
-            prefetch_hint(pay + i + scan_prefetch);
-            prefetch_hint(pay + i + scan_prefetch + 8);
-        }
+        prefetch_ahead(ahead, i);
         if (i + 1 == n || hi[i + 1] != hi[i]) { // the common case, continuous scores
             ++i;
             continue;
@@ -456,8 +453,7 @@ std::size_t profile_doubles(std::string_view who, std::span<const double> s, std
     for (std::size_t start = 0; start < n; start += block) {
         const std::size_t end = std::min(n, start + block);
         if (end + block <= n)
-            for (std::size_t i = end; i < end + block; i += 8)
-                prefetch_hint(s.data() + i);
+            prefetch_rows(s.data(), end, end + block);
         r.add_doubles(s.data() + start, end - start);
         std::uint32_t block_positives = 0; // a narrow count: the loop vectorises
         for (std::size_t i = start; i < end; ++i) {
