@@ -219,38 +219,43 @@ TEST_SUITE("estimate/aggregator") {
         cv.record(b.view(1, 0, 1), gather(yl, b.test), gather(fl, b.test));
         CHECK_THROWS_WITH_AS(
             (void)cv.estimate(measure::classification_error{}, ci::wilson),
-            "heldout::aggregator::estimate: argument 'method': ci::wilson computes an interval from one test set "
-            "of independent rows, but 2 splits were recorded: pooled out-of-fold predictions are dependent (rows "
-            "of a test set share one fitted model, and the models share training rows), so the interval would be "
-            "too narrow; use ci::corrected_t (the default here)",
+            "heldout::aggregator::estimate: argument 'method': ci::wilson (Wilson) does not apply to "
+            "measure classification error: it needs one test set, and several splits were recorded "
+            "(out-of-fold rows share fitted models and training rows, so they are not independent). Methods "
+            "that apply here: ci::corrected_t (the default here), ci::naive_t",
             heldout::input_error);
         CHECK_THROWS_AS((void)cv.estimate(measure::classification_error{}, ci::t), heldout::input_error);
         CHECK_THROWS_AS((void)cv.estimate(measure::classification_error{}, ci::bca), heldout::input_error);
         CHECK_THROWS_WITH_AS((void)cv.estimate(measure::classification_error{}, ci::bootstrap_632_plus),
-                             "heldout::aggregator::estimate: argument 'method': ci::bootstrap_632_plus combines "
-                             "out-of-bag errors of bootstrap splits with the apparent error; split 0 carries no "
-                             "draw counts (not a bootstrap split)",
+                             "heldout::aggregator::estimate: argument 'method': ci::bootstrap_632_plus (.632+ bootstrap) "
+                             "does not apply to measure classification error: it combines out-of-bag errors of bootstrap "
+                             "samples, and the splits are not bootstrap samples; it needs the apparent result "
+                             "(record_apparent: the model fit on all rows, scored on them). Methods that apply here: "
+                             "ci::corrected_t (the default here), ci::naive_t",
                              heldout::input_error);
 
         aggregator one(measure::mse{}, max_error{});
         one.record(a.view(0), gather(y, a.test), gather(f, a.test));
         CHECK_THROWS_WITH_AS((void)one.estimate(measure::mse{}, ci::corrected_t),
-                             "heldout::aggregator::estimate: argument 'method': ci::corrected_t works over several "
-                             "splits; one test set was recorded: use ci::t or ci::wilson (pointwise losses), ci::bca, "
-                             "or ci::delong (AUC)",
+                             "heldout::aggregator::estimate: argument 'method': ci::corrected_t (corrected t "
+                             "(Nadeau-Bengio)) does not apply to measure MSE: it works over several splits, and one test set "
+                             "was recorded. Methods that apply here: ci::t (the default here), ci::bootstrap_percentile, "
+                             "ci::bca",
                              heldout::input_error);
         CHECK_THROWS_WITH_AS((void)one.estimate(measure::mse{}, ci::wilson),
-                             "heldout::aggregator::estimate: argument 'method': ci::wilson needs 0/1 losses (an error "
-                             "rate or accuracy); measure MSE has loss 0.25 at row 0; use ci::t or ci::bca",
+                             "heldout::aggregator::estimate: argument 'method': ci::wilson (Wilson) does not apply to "
+                             "measure MSE: the per-row values are not all 0 or 1 (not an error rate or accuracy). Methods "
+                             "that apply here: ci::t (the default here), ci::bootstrap_percentile, ci::bca",
                              heldout::input_error);
         CHECK_THROWS_WITH_AS((void)one.estimate(max_error{}, ci::t),
-                             "heldout::aggregator::estimate: argument 'method': ci::t needs per-row losses, and "
-                             "measure max error is not a mean of per-row losses; use ci::bca or "
-                             "ci::bootstrap_percentile",
+                             "heldout::aggregator::estimate: argument 'method': ci::t (Student t) does not apply to measure "
+                             "max error: the measure is not a mean of per-row values (it does not offer cap::row_losses). "
+                             "Methods that apply here: ci::bootstrap_percentile, ci::bca (the default here)",
                              heldout::input_error);
         CHECK_THROWS_WITH_AS((void)one.estimate(measure::mse{}, ci::delong),
-                             "heldout::aggregator::estimate: argument 'method': ci::delong is the DeLong interval of "
-                             "the ROC AUC; measure MSE is not an AUC: use ci::bca or ci::bootstrap_percentile",
+                             "heldout::aggregator::estimate: argument 'method': ci::delong (DeLong) does not apply to "
+                             "measure MSE: the measure has no DeLong components (it is not a two-sample U statistic like the "
+                             "ROC AUC). Methods that apply here: ci::t (the default here), ci::bootstrap_percentile, ci::bca",
                              heldout::input_error);
         // a non-pointwise measure on one test set defaults to BCa
         aggregator six(max_error{});
@@ -263,9 +268,8 @@ TEST_SUITE("estimate/aggregator") {
         lean.record(a.view(0), gather(y, a.test), gather(f, a.test));
         CHECK(lean.estimate(measure::mse{}, ci::t).has_interval());
         CHECK_THROWS_WITH_AS((void)lean.estimate(heldout::measure::mean_loss<heldout::loss::absolute>{}),
-                             "heldout::aggregator::estimate: argument 'measure': measure MAE was not tracked and "
-                             "predictions were not kept: give it to the aggregator before recording, or keep "
-                             "predictions",
+                             "heldout::aggregator::estimate: argument 'measure': measure MAE is not tracked with these "
+                             "parameters (tracked: MSE); add it with add_measure(m) before recording",
                              heldout::input_error);
         CHECK_THROWS_AS((void)lean.estimate(measure::mse{}, ci::bca), heldout::input_error);
     }
@@ -285,9 +289,9 @@ TEST_SUITE("estimate/aggregator") {
         aggregator labels(measure::classification_error{});
         const std::vector<int> yl{0, 1, 1};
         CHECK_THROWS_WITH_AS(labels.record(split{{}, test, 0, 0, 0, {}}, yl, y),
-                             "heldout::aggregator::record: argument 'predictions': measure classification error "
-                             "(needs class label predictions) cannot score floating-point values against truth given "
-                             "as integral labels",
+                             "heldout::aggregator::record: argument 'predictions': measure classification error (needs class "
+                             "label predictions and class label truth) cannot score floating-point values against truth "
+                             "given as integral labels",
                              heldout::input_error);
         agg.record(split{{}, test, 0, 0, 0, {}}, y, y);
         const std::vector<int> yi{1, 2, 3};
@@ -316,8 +320,16 @@ TEST_SUITE("estimate/aggregator") {
         REQUIRE(!e.notes.empty());
         CHECK(e.notes[0] == "1 of 3 splits undefined: constant truth in the test set");
         CHECK(*e.pooled == 2.0); // defined over all rows together
-        // an untracked measure is replayed from the kept predictions
-        const auto mae = agg.estimate(heldout::measure::mean_loss<heldout::loss::absolute>{}, ci::naive_t);
+        // an untracked measure is refused by identity (not by printed name); once added it is
+        // replayed from the kept predictions
+        const heldout::measure::mean_loss<heldout::loss::absolute> mae_measure{};
+        CHECK_THROWS_WITH_AS((void)agg.estimate(mae_measure, ci::naive_t),
+                             "heldout::aggregator::estimate: argument 'measure': measure MAE is not tracked with "
+                             "these parameters (tracked: max error, MSE); add it with add_measure(m) (it is "
+                             "computed from the kept predictions)",
+                             heldout::input_error);
+        agg.add_measure(mae_measure);
+        const auto mae = agg.estimate(mae_measure, ci::naive_t);
         CHECK(mae.splits == 3);
 
         // AUC with one class in a test set: undefined there, reason from the measure
@@ -412,9 +424,11 @@ TEST_SUITE("estimate/aggregator") {
         const auto d = agg.estimate(measure::classification_error{}, ci::bootstrap_632);
         CHECK(d.value == doctest::Approx(0.2948).epsilon(1e-14)); // 0.368 * 0.2 + 0.632 * 0.35
         CHECK_THROWS_WITH_AS((void)agg.estimate(measure::classification_error{}, ci::corrected_t),
-                             "heldout::aggregator::estimate: argument 'method': ci::corrected_t (Nadeau-Bengio) is "
-                             "for splits drawn without replacement (k-fold, repeated k-fold, subsampling); the "
-                             "recorded splits are bootstrap samples: use ci::bootstrap_632_plus",
+                             "heldout::aggregator::estimate: argument 'method': ci::corrected_t (corrected t "
+                             "(Nadeau-Bengio)) does not apply to measure classification error: it assumes random train/test "
+                             "splits drawn without replacement, and the splits are not (its variance correction has no "
+                             "justification there). Methods that apply here: ci::naive_t, ci::bootstrap_632, "
+                             "ci::bootstrap_632_plus (the default here)",
                              heldout::input_error);
         CHECK_THROWS_AS((void)agg.estimate(measure::accuracy{}, ci::bootstrap_632), heldout::input_error);
         // squared error: gamma by the closed form, .632 by the same weights

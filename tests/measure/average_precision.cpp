@@ -86,8 +86,8 @@ TEST_SUITE("measure/average_precision") {
         auto t1 = auprc{}.accumulator();
         auto t2 = auprc{pr_start::first_precision}.accumulator();
         CHECK_THROWS_WITH_AS(t1.merge(t2),
-                             "measure PR AUC (trapezoidal): argument 'other': cannot merge accumulators of different "
-                             "parameters",
+                             "measure PR AUC (trapezoidal): argument 'other': cannot merge a state of PR AUC (trapezoidal, "
+                             "from the first precision) into one of PR AUC (trapezoidal): the parameters differ",
                              heldout::input_error);
         std::vector<int> codes;
         t2.visit_state([&](const auto& m) {

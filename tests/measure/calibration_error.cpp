@@ -150,7 +150,7 @@ TEST_SUITE("measure/calibration_error") {
         const std::vector<int> ok{0, 1, 1};
         const std::vector<double> bad{0.2, 1.4, 0.6};
         CHECK_THROWS_WITH_AS(evaluate(calibration_error{}, ok, bad),
-                             "measure calibration error: argument 'prediction': probability 1.3999999999999999 outside "
+                             "measure calibration error: argument 'prediction': probability 1.4 outside "
                              "[0, 1] at index 1",
                              heldout::input_error);
         CHECK_THROWS_WITH_AS((void)calibration_error{.bins = 0}.accumulator(),

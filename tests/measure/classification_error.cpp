@@ -32,7 +32,7 @@ void check_bytes_round_trip(const M& m, int bad_label) {
     const std::vector<int> y2{2, 0}, f2{2, 1};
     const std::vector<double> w2{0.75, 2.5};
     const std::string empty = heldout_test::check_bytes_round_trip(m, y, f, y2, f2, bad_label, w2);
-    CHECK(empty == m.name().insert(0, "measure ") + ": undefined: no observations");
+    CHECK(empty == m.message_name().insert(0, "measure ") + ": undefined: no observations");
 }
 } // namespace
 

@@ -45,7 +45,8 @@ TEST_SUITE("measure/cost_weighted_error") {
         const std::vector<double> w{1, 2, 3, 4, 5};
         CHECK(evaluate(cost_weighted_error{costs}, y, f, w) == doctest::Approx(33.0 / 15).epsilon(1e-15));
         const cost_weighted_error m{costs};
-        CHECK(m.name() == "cost-weighted error");
+        CHECK(m.name() == "cost-weighted error (costs [0 1 2; 3 0 4; 5 6 0])"); // the costs are its identity
+        CHECK(m.message_name() == "cost-weighted error");
         CHECK(m.costs() == costs);
         CHECK(cost_weighted_error::better == heldout::direction::lower_is_better);
         CHECK(heldout::outer_measure<cost_weighted_error>);

@@ -108,7 +108,7 @@ TEST_SUITE("plan/holdout") {
         CHECK(message_of([] { heldout::holdout{.test_fraction = 0.01}.splits(10); }) ==
               "heldout::holdout: argument 'test_fraction': 0.01 of 10 rows rounds to no test rows");
         CHECK(message_of([] { heldout::holdout{.test_fraction = 0.97}.splits(10); }) ==
-              "heldout::holdout: argument 'test_fraction': 0.96999999999999997 of 10 rows leaves no training rows");
+              "heldout::holdout: argument 'test_fraction': 0.97 of 10 rows leaves no training rows");
         CHECK(message_of([] { heldout::holdout{.test_count = 10}.splits(10); }) ==
               "heldout::holdout: argument 'test_count': 10 test rows leave no training rows out of 10");
         CHECK(message_of([] { heldout::holdout{}.splits(1); }) ==

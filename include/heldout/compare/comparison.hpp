@@ -48,6 +48,7 @@
 #include <heldout/compare/five_by_two.hpp>
 #include <heldout/compare/holm.hpp>
 #include <heldout/compare/mcnemar.hpp>
+#include <heldout/compare/paired.hpp>
 #include <heldout/estimate/aggregator.hpp>
 #include <heldout/estimate/bootstrap.hpp>
 #include <heldout/estimate/corrected_t.hpp>
@@ -68,118 +69,6 @@
 #include <vector>
 
 HELDOUT_NAMESPACE_BEGIN
-namespace paired {
-
-/// Which paired method.
-enum class method_id : unsigned char {
-    automatic,
-    corrected_t,
-    naive_t,
-    five_by_two_t,
-    five_by_two_f,
-    mcnemar_exact,
-    mcnemar_mid_p,
-    mcnemar_chi_squared,
-    mcnemar_corrected,
-    delong,
-    bootstrap_percentile,
-    bootstrap_bca
-};
-
-/// A paired method and its settings (bootstrap replicates and seed; ignored by the others).
-struct method {
-    method_id id = method_id::automatic;
-    std::size_t replicates = 2000;
-    std::uint64_t seed = 0;
-
-    /// The same bootstrap method with B replicates and a seed: `paired::bootstrap_bca(5000, 7)`.
-    constexpr method operator()(std::size_t b, std::uint64_t s = 0) const {
-        if (id != method_id::bootstrap_percentile && id != method_id::bootstrap_bca)
-            detail::fail("heldout::paired::method", "replicates",
-                         "only paired::bootstrap_percentile and paired::bootstrap_bca take replicates and a seed");
-        if (b < 2)
-            detail::fail("heldout::paired::method", "replicates", "at least 2 bootstrap replicates are needed");
-        return method{id, b, s};
-    }
-    friend constexpr bool operator==(const method&, const method&) = default;
-};
-
-inline constexpr method automatic{method_id::automatic};
-inline constexpr method corrected_t{method_id::corrected_t};
-inline constexpr method naive_t{method_id::naive_t};
-inline constexpr method five_by_two_t{method_id::five_by_two_t};
-inline constexpr method five_by_two_f{method_id::five_by_two_f};
-inline constexpr method mcnemar_exact{method_id::mcnemar_exact};
-inline constexpr method mcnemar_mid_p{method_id::mcnemar_mid_p};
-inline constexpr method mcnemar_chi_squared{method_id::mcnemar_chi_squared};
-inline constexpr method mcnemar_corrected{method_id::mcnemar_corrected};
-inline constexpr method delong{method_id::delong};
-inline constexpr method bootstrap_percentile{method_id::bootstrap_percentile};
-inline constexpr method bootstrap_bca{method_id::bootstrap_bca};
-
-/// The identifier used in exports ("corrected_t").
-constexpr std::string_view id_text(method_id m) noexcept {
-    switch (m) {
-    case method_id::automatic:
-        return "automatic";
-    case method_id::corrected_t:
-        return "corrected_t";
-    case method_id::naive_t:
-        return "naive_t";
-    case method_id::five_by_two_t:
-        return "five_by_two_t";
-    case method_id::five_by_two_f:
-        return "five_by_two_f";
-    case method_id::mcnemar_exact:
-        return "mcnemar_exact";
-    case method_id::mcnemar_mid_p:
-        return "mcnemar_mid_p";
-    case method_id::mcnemar_chi_squared:
-        return "mcnemar_chi_squared";
-    case method_id::mcnemar_corrected:
-        return "mcnemar_corrected";
-    case method_id::delong:
-        return "delong";
-    case method_id::bootstrap_percentile:
-        return "bootstrap_percentile";
-    case method_id::bootstrap_bca:
-        return "bootstrap_bca";
-    }
-    return "?";
-}
-
-/// The printed name ("5x2cv t (Dietterich)").
-constexpr std::string_view label(method_id m) noexcept {
-    switch (m) {
-    case method_id::automatic:
-        return "automatic";
-    case method_id::corrected_t:
-        return "corrected t";
-    case method_id::naive_t:
-        return "naive paired t over splits (rejects too often)";
-    case method_id::five_by_two_t:
-        return "5x2cv t (Dietterich)";
-    case method_id::five_by_two_f:
-        return "5x2cv F (Alpaydin)";
-    case method_id::mcnemar_exact:
-        return "McNemar exact";
-    case method_id::mcnemar_mid_p:
-        return "McNemar mid-p";
-    case method_id::mcnemar_chi_squared:
-        return "McNemar chi-squared";
-    case method_id::mcnemar_corrected:
-        return "McNemar chi-squared, continuity-corrected";
-    case method_id::delong:
-        return "paired DeLong";
-    case method_id::bootstrap_percentile:
-        return "paired percentile bootstrap";
-    case method_id::bootstrap_bca:
-        return "paired BCa bootstrap";
-    }
-    return "?";
-}
-
-} // namespace paired
 
 /// The comparison of two models on one measure: measure(A) - measure(B) with its uncertainty.
 struct comparison {
@@ -298,24 +187,13 @@ namespace detail::cmp {
 
 inline constexpr std::string_view who = "heldout::compare";
 
-/// The loss "value(y, f) = f": mean_loss of it over per-row losses is their mean, so the paired
-/// bootstrap of a pointwise measure runs on the recorded per-row losses.
+/// The loss "value(y, f) = f": mean_loss of it over per-row values is their mean, so the
+/// paired bootstrap of a measure with per-row values runs on the recorded values.
 struct row_value {
     static constexpr std::string_view name = "per-row value";
     double value(double, double f) const noexcept { return f; }
 };
 
-inline bool is_mcnemar(paired::method_id id) {
-    return id == paired::method_id::mcnemar_exact || id == paired::method_id::mcnemar_mid_p ||
-           id == paired::method_id::mcnemar_chi_squared || id == paired::method_id::mcnemar_corrected;
-}
-inline bool is_bootstrap(paired::method_id id) {
-    return id == paired::method_id::bootstrap_percentile || id == paired::method_id::bootstrap_bca;
-}
-inline bool is_split_method(paired::method_id id) {
-    return id == paired::method_id::corrected_t || id == paired::method_id::naive_t ||
-           id == paired::method_id::five_by_two_t || id == paired::method_id::five_by_two_f;
-}
 inline mcnemar mcnemar_variant(paired::method_id id) {
     switch (id) {
     case paired::method_id::mcnemar_exact:
@@ -413,21 +291,114 @@ inline void mcnemar_fill(comparison& c, paired::method_id id, std::uint64_t only
                       (only_a + only_b == 0 ? " (no discordant rows: p = 1, statistic 0 by convention)" : ""));
 }
 
-template <class M>
-constexpr bool zero_one_label_measure() {
-    return enable_pointwise_losses<M> && M::kind == prediction_kind::label;
+/// "paired::a (the default here), paired::b" — the paired methods that apply.
+inline std::string applicable_text(const record_shape& r, const measure_facts& f) {
+    std::string s;
+    const auto d = paired::automatic_choice(r, f);
+    for (const paired::method_id id : paired::applicable(r, f))
+        s += (s.empty() ? "" : ", ") + method_name(id) + (d && *d == id ? " (the default here)" : "");
+    return s.empty() ? std::string("none") : s;
 }
 
-template <class M>
-paired::method_id resolve_one_set(paired::method_id id) {
-    if (id != paired::method_id::automatic)
-        return id;
-    if constexpr (zero_one_label_measure<M>())
-        return paired::method_id::mcnemar_mid_p;
-    else if constexpr (enable_delong<M>)
-        return paired::method_id::delong;
-    else
-        return paired::method_id::bootstrap_percentile;
+/// The method to run: the requested one if it applies, paired::automatic's choice, or a
+/// refusal saying why and what applies instead.
+inline paired::method_id resolve(paired::method_id requested, const record_shape& r, const measure_facts& f,
+                                 const std::string& measure) {
+    if (requested == paired::method_id::automatic) {
+        if (const auto d = paired::automatic_choice(r, f))
+            return *d;
+        fail(who, "method",
+             "no paired method has a valid default for " + std::string(to_string(r.design)) + " (" +
+                 count_text(r.splits, "split") + ") and measure " + measure +
+                 ": the corrected t assumes random train/test splits drawn without replacement "
+                 "(docs/compare.md); methods that apply, each with its caution: " +
+                 applicable_text(r, f));
+    }
+    const auto unmet = unmet_needs(paired::info(requested).needs, r, f);
+    if (unmet.empty())
+        return requested;
+    std::string why;
+    for (const need n : unmet)
+        why += (why.empty() ? "" : "; ") + std::string(need_text(n));
+    fail(who, "method",
+         method_name(requested) + " (" + std::string(paired::info(requested).label) +
+             ") does not apply to measure " + measure + ": " + why + ". Methods that apply here: " +
+             applicable_text(r, f));
+}
+
+/// The split methods: corrected t, naive t, 5x2cv t and F over the per-split differences.
+inline void split_methods(comparison& c, paired::method_id id, std::span<const split_record> recs,
+                          const track_base& ta, const track_base& tb, double level) {
+    std::vector<double> d;
+    double train_sum = 0, test_sum = 0;
+    std::size_t left_out = 0, max_fold = 0;
+    for (std::size_t i = 0; i < recs.size(); ++i) {
+        max_fold = std::max(max_fold, recs[i].fold);
+        if (!ta.values[i] || !tb.values[i]) {
+            ++left_out;
+            continue;
+        }
+        d.push_back(*ta.values[i] - *tb.values[i]);
+        train_sum += static_cast<double>(recs[i].train_size);
+        test_sum += static_cast<double>(recs[i].test_size);
+        c.observations += recs[i].test_size;
+    }
+    c.splits = d.size();
+    if (left_out > 0)
+        c.notes.push_back(std::to_string(left_out) + " of " + count_text(recs.size(), "split") +
+                          " left out: the measure is undefined there for A or B");
+    const std::string mname = method_name(id);
+    if (id == paired::method_id::five_by_two_t || id == paired::method_id::five_by_two_f) {
+        if (left_out > 0)
+            fail_undefined(who, mname + " needs all 10 splits, and the measure is undefined on " +
+                                    count_text(left_out, "split"));
+        const auto r = five_by_two_test(d, level);
+        c.difference = r.mean_difference;
+        if (id == paired::method_id::five_by_two_t) {
+            c.se = r.se;
+            c.lower = r.lower;
+            c.upper = r.upper;
+            c.statistic = r.t_statistic;
+            c.df = 5.0;
+            c.p_value = r.t_p_value;
+            c.notes.push_back("difference is the mean of the 10 fold differences; t uses the first, " +
+                              number_text(r.first_difference) +
+                              ", and the interval (which inverts the t test) is centred on it");
+        } else {
+            c.statistic = r.f_statistic;
+            c.df = 10.0;
+            c.df2 = 5.0;
+            c.p_value = r.f_p_value;
+            c.notes.push_back("difference is the mean of the 10 fold differences; the combined F test has no "
+                              "interval");
+        }
+        return;
+    }
+    if (d.size() < 2)
+        fail_undefined(who, mname + " needs two or more splits where the measure is defined for both");
+    c.difference = mean_of(d);
+    resampled_t_result r;
+    if (id == paired::method_id::corrected_t) {
+        const double n_train = train_sum / static_cast<double>(d.size());
+        const double n_test = test_sum / static_cast<double>(d.size());
+        r = corrected_resampled_t(d, n_train, n_test, level);
+        const bool kfold = max_fold > 0;
+        c.method_label += kfold ? " (Bouckaert-Frank)" : " (Nadeau-Bengio)";
+        c.notes.push_back(std::string(kfold ? "repeated k-fold form (Bouckaert & Frank 2004)"
+                                            : "subsampling form (Nadeau & Bengio 2003)") +
+                          ": variance factor 1/J + n_test/n_train with n_train " + number_text(n_train) +
+                          ", n_test " + number_text(n_test) + " (mean recorded sizes)");
+    } else {
+        r = naive_resampled_t(d, level);
+        c.notes.push_back("the naive paired t treats overlapping splits as independent and is known to reject "
+                          "far too often (Dietterich 1998; Nadeau & Bengio 2003): use paired::corrected_t");
+    }
+    c.se = r.se;
+    c.lower = r.lower;
+    c.upper = r.upper;
+    c.statistic = r.statistic;
+    c.df = r.df;
+    c.p_value = r.p_value;
 }
 
 } // namespace detail::cmp
@@ -437,262 +408,120 @@ template <outer_measure M>
 comparison compare(const aggregator& agg_a, const aggregator& agg_b, const M& m,
                    paired::method method = paired::automatic, double level = 0.95) {
     using namespace detail::cmp;
+    using detail::aggregator_access;
+    static_assert(check_measure<M>());
     detail::check_level(who, level);
     check_same_splits(agg_a, agg_b);
-    const auto va = agg_a.split_values(m);
-    const auto vb = agg_b.split_values(m);
+    const auto& ta = aggregator_access::track(agg_a, m, who);
+    const auto& tb = aggregator_access::track(agg_b, m, who);
     const auto& recs = agg_a.splits();
-    const bool bootstrap_plan = std::any_of(recs.begin(), recs.end(), [](const auto& s) { return s.bootstrap; });
 
     comparison c;
-    c.measure = m.name();
+    c.measure = ta.name;
     c.level = level;
-    paired::method_id id = method.id;
-    if (id == paired::method_id::automatic)
-        id = recs.size() > 1 ? paired::method_id::corrected_t : resolve_one_set<M>(id);
+    record_shape rs = agg_a.method_shape();
+    rs.kept_predictions = agg_a.keeps_predictions() && agg_b.keeps_predictions();
+    measure_facts f = detail::facts_of(ta);
+    const measure_facts fb = detail::facts_of(tb);
+    f.zero_one_losses = f.zero_one_losses && fb.zero_one_losses;
+    f.weighted_add = f.weighted_add && fb.weighted_add;
+    const paired::method_id id = resolve(method.id, rs, f, c.measure);
     c.method = id;
     c.method_label = std::string(paired::label(id));
-    const std::string mname = method_name(id);
 
-    if (is_split_method(id)) {
-        if (recs.size() < 2)
-            detail::fail(who, "method",
-                         mname + " works over several splits; one test set was recorded: use paired::mcnemar_mid_p "
-                                 "(0/1 measures), paired::delong (AUC) or paired::bootstrap_percentile");
-        if (bootstrap_plan)
-            detail::fail(who, "method",
-                         mname + " is for splits drawn without replacement (k-fold, repeated k-fold, subsampling, "
-                                 "5x2cv); the recorded splits are bootstrap samples");
-        std::vector<double> d;
-        double train_sum = 0, test_sum = 0;
-        std::size_t left_out = 0, max_fold = 0;
-        for (std::size_t i = 0; i < recs.size(); ++i) {
-            max_fold = std::max(max_fold, recs[i].fold);
-            if (!va[i].value || !vb[i].value) {
-                ++left_out;
-                continue;
-            }
-            d.push_back(*va[i].value - *vb[i].value);
-            train_sum += static_cast<double>(recs[i].train_size);
-            test_sum += static_cast<double>(recs[i].test_size);
-            c.observations += recs[i].test_size;
-        }
-        c.splits = d.size();
-        if (left_out > 0)
-            c.notes.push_back(std::to_string(left_out) + " of " + detail::count_text(recs.size(), "split") +
-                              " left out: the measure is undefined there for A or B");
-        if (id == paired::method_id::five_by_two_t || id == paired::method_id::five_by_two_f) {
-            bool shaped = recs.size() == 10;
-            for (std::size_t i = 0; shaped && i < recs.size(); ++i)
-                shaped = recs[i].repeat == i / 2 && recs[i].fold == i % 2;
-            if (!shaped)
-                detail::fail(who, "method",
-                             mname + " needs the 10 splits of heldout::five_by_two (5 repeats of 2-fold, in order); " +
-                                 detail::count_text(recs.size(), "split") + " were recorded");
-            if (left_out > 0)
-                detail::fail_undefined(who, mname + " needs all 10 splits, and the measure is undefined on " +
-                                                detail::count_text(left_out, "split"));
-            const auto r = five_by_two_test(d, level);
-            c.difference = r.mean_difference;
-            if (id == paired::method_id::five_by_two_t) {
-                c.se = r.se;
-                c.lower = r.lower;
-                c.upper = r.upper;
-                c.statistic = r.t_statistic;
-                c.df = 5.0;
-                c.p_value = r.t_p_value;
-                c.notes.push_back("difference is the mean of the 10 fold differences; t uses the first, " +
-                                  detail::number_text(r.first_difference) +
-                                  ", and the interval (which inverts the t test) is centred on it");
-            } else {
-                c.statistic = r.f_statistic;
-                c.df = 10.0;
-                c.df2 = 5.0;
-                c.p_value = r.f_p_value;
-                c.notes.push_back("difference is the mean of the 10 fold differences; the combined F test has no "
-                                  "interval");
-            }
-            return c;
-        }
-        if (d.size() < 2)
-            detail::fail_undefined(who, mname + " needs two or more splits where the measure is defined for both");
-        c.difference = detail::mean_of(d);
-        resampled_t_result r;
-        if (id == paired::method_id::corrected_t) {
-            const double n_train = train_sum / static_cast<double>(d.size());
-            const double n_test = test_sum / static_cast<double>(d.size());
-            r = corrected_resampled_t(d, n_train, n_test, level);
-            const bool kfold = max_fold > 0;
-            c.method_label += kfold ? " (Bouckaert-Frank)" : " (Nadeau-Bengio)";
-            c.notes.push_back(std::string(kfold ? "repeated k-fold form (Bouckaert & Frank 2004)"
-                                                : "subsampling form (Nadeau & Bengio 2003)") +
-                              ": variance factor 1/J + n_test/n_train with n_train " + detail::number_text(n_train) +
-                              ", n_test " + detail::number_text(n_test) + " (mean recorded sizes)");
-        } else {
-            r = naive_resampled_t(d, level);
-            c.notes.push_back("the naive paired t treats overlapping splits as independent and is known to reject "
-                              "far too often (Dietterich 1998; Nadeau & Bengio 2003): use paired::corrected_t");
-        }
-        c.se = r.se;
-        c.lower = r.lower;
-        c.upper = r.upper;
-        c.statistic = r.statistic;
-        c.df = r.df;
-        c.p_value = r.p_value;
+    if (rs.splits > 1) {
+        split_methods(c, id, recs, ta, tb, level);
         return c;
     }
 
     // One test set.
-    if (recs.size() > 1)
-        detail::fail(who, "method",
-                     mname + " compares two models on one test set of independent rows, but " +
-                         detail::count_text(recs.size(), "split") +
-                         " were recorded: use paired::corrected_t (the default here)");
     c.splits = 1;
     c.observations = recs[0].test_size;
-    if (!va[0].value || !vb[0].value)
-        detail::fail_undefined(who,
-                               "measure " + c.measure + " is undefined on the test set for model " +
-                                   (va[0].value ? "B: " + vb[0].undefined_reason : "A: " + va[0].undefined_reason));
-    c.difference = *va[0].value - *vb[0].value;
-    if (id == paired::method_id::delong) {
-        if constexpr (enable_delong<M>) {
-            if (!agg_a.keeps_predictions() || !agg_b.keeps_predictions())
-                detail::fail(who, "method",
-                             "paired::delong needs the recorded scores: call keep_predictions(true) on both "
-                             "aggregators before recording (evaluate_splits keeps them by default), or use "
-                             "heldout::compare(measure, truth, scores_a, scores_b, paired::delong)");
-            const auto truth = agg_a.truth_of(0);
-            const auto pa = agg_a.predictions_of(0);
-            const auto pb = agg_b.predictions_of(0);
-            if (!truth.integral() || pa.integral() || pb.integral() || pa.cols != 1 || pb.cols != 1)
-                detail::fail(who, "method", "paired::delong needs 0/1 truth and one real score column per model");
-            const auto r = delong_test(truth.labels, pa.values, pb.values, level);
-            c.difference = r.difference;
-            c.se = r.se;
-            c.lower = r.lower;
-            c.upper = r.upper;
-            c.statistic = r.z;
-            c.p_value = r.p_value;
-            c.notes.push_back("z statistic, normal reference; Wald interval of the AUC difference");
-            return c;
-        } else {
-            detail::fail(who, "method", "paired::delong compares ROC AUCs; measure " + c.measure + " is not an AUC");
+    if (!ta.values[0] || !tb.values[0])
+        detail::fail_undefined(who, "measure " + c.measure + " is undefined on the test set for model " +
+                                        (ta.values[0] ? "B: " + tb.reasons[0] : "A: " + ta.reasons[0]));
+    c.difference = *ta.values[0] - *tb.values[0];
+    const std::size_t n = recs[0].test_size;
+    switch (id) {
+    case paired::method_id::mcnemar_exact:
+    case paired::method_id::mcnemar_mid_p:
+    case paired::method_id::mcnemar_chi_squared:
+    case paired::method_id::mcnemar_corrected: {
+        std::uint64_t only_a = 0, only_b = 0;
+        // A row is right when its 0/1 value is the better one: 0 for an error, 1 for accuracy.
+        const double right = M::better == direction::lower_is_better ? 0.0 : 1.0;
+        for (std::size_t i = 0; i < n; ++i) {
+            const bool ra = ta.losses[i] == right, rb = tb.losses[i] == right;
+            only_a += ra && !rb ? 1 : 0;
+            only_b += rb && !ra ? 1 : 0;
         }
+        mcnemar_fill(c, id, only_a, only_b);
+        return c;
     }
-    if constexpr (enable_pointwise_losses<M>) {
-        const auto la = agg_a.losses(m, 0);
-        const auto lb = agg_b.losses(m, 0);
-        if (is_mcnemar(id)) {
-            std::uint64_t only_a = 0, only_b = 0;
-            // A row is right when its 0/1 loss is the better value: 0 for an error, 1 for accuracy.
-            const double right = M::better == direction::lower_is_better ? 0.0 : 1.0;
-            for (std::size_t i = 0; i < la.losses.size(); ++i) {
-                for (const auto* l : {&la, &lb})
-                    if (l->losses[i] != 0.0 && l->losses[i] != 1.0)
-                        detail::fail(who, "method",
-                                     mname + " needs 0/1 per-row values (classification error, accuracy); measure " +
-                                         c.measure + " has " + detail::number_text(l->losses[i]) + " at row " +
-                                         std::to_string(l->rows[i]) + " for model " + (l == &la ? "A" : "B"));
-                const bool ra = la.losses[i] == right, rb = lb.losses[i] == right;
-                only_a += ra && !rb ? 1 : 0;
-                only_b += rb && !ra ? 1 : 0;
-            }
-            mcnemar_fill(c, id, only_a, only_b);
-            return c;
-        }
-        if (is_bootstrap(id)) {
+    case paired::method_id::delong: {
+        const auto* t = aggregator_access::truth(agg_a);
+        const auto ca = ta.components(*t, *aggregator_access::predictions(agg_a), 0, n);
+        const auto cb = tb.components(*aggregator_access::truth(agg_b), *aggregator_access::predictions(agg_b), 0, n);
+        const auto r = delong_components_test(ca, cb, level);
+        c.difference = r.difference;
+        c.se = r.se;
+        c.lower = r.lower;
+        c.upper = r.upper;
+        c.statistic = r.z;
+        c.p_value = r.p_value;
+        c.notes.push_back("z statistic, normal reference; Wald interval of the difference");
+        return c;
+    }
+    case paired::method_id::bootstrap_percentile:
+    case paired::method_id::bootstrap_bca: {
+        const bootstrap_options o{method.replicates, method.seed, level};
+        bootstrap_replicate_set set;
+        std::vector<double> jack;
+        const bool bca = id == paired::method_id::bootstrap_bca;
+        if (f.row_losses) {
             const measure::mean_loss<row_value> mean_of_rows{};
-            const std::vector<double> zeros(la.losses.size(), 0.0);
-            const bootstrap_options o{method.replicates, method.seed, level};
-            auto set = paired_bootstrap_replicates(mean_of_rows, zeros, la.losses, lb.losses, o);
-            std::vector<double> jack;
-            if (id == paired::method_id::bootstrap_bca) {
-                jack = jackknife_values(mean_of_rows, zeros, la.losses);
-                const auto jb = jackknife_values(mean_of_rows, zeros, lb.losses);
+            const std::vector<double> zeros(n, 0.0);
+            const std::span<const double> la(ta.losses), lb(tb.losses);
+            set = paired_bootstrap_replicates(mean_of_rows, zeros, la, lb, o);
+            if (bca) {
+                jack = jackknife_values(mean_of_rows, zeros, la);
+                const auto jb = jackknife_values(mean_of_rows, zeros, lb);
                 for (std::size_t i = 0; i < jack.size(); ++i)
                     jack[i] -= jb[i];
             }
             bootstrap_fill(c, id, c.difference, set, jack, method.replicates, method.seed, level);
-            c.notes.push_back("resampled the per-row losses of the " + detail::count_text(c.observations, "test row"));
-            return c;
+            c.notes.push_back("resampled the per-row values of the " + detail::count_text(n, "test row"));
+        } else {
+            set = ta.paired_replicates(*aggregator_access::truth(agg_a), *aggregator_access::predictions(agg_a),
+                                       *aggregator_access::predictions(agg_b), 0, n, o, bca ? &jack : nullptr);
+            bootstrap_fill(c, id, c.difference, set, jack, method.replicates, method.seed, level);
+            c.notes.push_back("resampled the " + detail::count_text(n, "test row") + " with both models' predictions fixed");
         }
+        return c;
     }
-    if (is_mcnemar(id))
-        detail::fail(who, "method",
-                     mname + " needs a tracked 0/1 pointwise measure (classification error, accuracy); measure " +
-                         c.measure + " is not a mean of per-row values");
-    detail::fail(who, "method",
-                 mname + " of measure " + c.measure +
-                     " (not a mean of per-row values) needs the predictions: use heldout::compare(measure, truth, "
-                     "prediction_a, prediction_b, method) on the test set");
+    default:
+        break;
+    }
+    HELDOUT_ASSERT(false);
+    return c;
 }
 
-/// Compares models A and B on one test set from their predictions (see the header comment).
+/// Compares models A and B on one test set from their predictions (see the header comment):
+/// the same as recording the test set as one split for each model and comparing those.
 template <outer_measure M, class T, class P>
 comparison compare(const M& m, const T& truth, const P& prediction_a, const P& prediction_b,
                    paired::method method = paired::automatic, double level = 0.95) {
-    using namespace detail::cmp;
     detail::check_prediction_type<M, P>();
     static_assert(scores<M, T, P>, "heldout: this measure cannot score this truth/prediction pairing");
-    detail::check_level(who, level);
-    comparison c;
-    c.measure = m.name();
-    c.level = level;
-    const paired::method_id id = resolve_one_set<M>(method.id);
-    c.method = id;
-    c.method_label = std::string(paired::label(id));
-    const std::string mname = method_name(id);
-    if (is_split_method(id))
-        detail::fail(who, "method",
-                     mname + " works over several splits: record them in two aggregators and use "
-                             "heldout::compare(agg_a, agg_b, measure, method)");
-    c.splits = 1;
-    c.observations = detail::prediction_rows(prediction_a);
-    c.difference = evaluate(m, truth, prediction_a) - evaluate(m, truth, prediction_b);
-    if (is_mcnemar(id)) {
-        if constexpr (zero_one_label_measure<M>() && label_range<T> && label_range<P>) {
-            const auto r = mcnemar_test(truth, prediction_a, prediction_b, mcnemar_variant(id));
-            mcnemar_fill(c, id, r.only_a_correct, r.only_b_correct);
-            return c;
-        } else {
-            detail::fail(who, "method",
-                         mname + " compares error rates from class labels; measure " + c.measure +
-                             " is not a 0/1 label measure (classification error, accuracy)");
-        }
-    }
-    if (id == paired::method_id::delong) {
-        if constexpr (enable_delong<M> && label_range<T> && real_range<P>) {
-            const auto r = delong_test(truth, prediction_a, prediction_b, level);
-            c.difference = r.difference;
-            c.se = r.se;
-            c.lower = r.lower;
-            c.upper = r.upper;
-            c.statistic = r.z;
-            c.p_value = r.p_value;
-            c.notes.push_back("z statistic, normal reference; Wald interval of the AUC difference");
-            return c;
-        } else {
-            detail::fail(who, "method", "paired::delong compares ROC AUCs; measure " + c.measure + " is not an AUC");
-        }
-    }
-    if constexpr (scores_weighted<M, T, P, std::span<const std::uint32_t>>) {
-        const bootstrap_options o{method.replicates, method.seed, level};
-        auto set = paired_bootstrap_replicates(m, truth, prediction_a, prediction_b, o);
-        std::vector<double> jack;
-        if (id == paired::method_id::bootstrap_bca) {
-            jack = jackknife_values(m, truth, prediction_a);
-            const auto jb = jackknife_values(m, truth, prediction_b);
-            for (std::size_t i = 0; i < jack.size(); ++i)
-                jack[i] -= jb[i];
-        }
-        bootstrap_fill(c, id, c.difference, set, jack, method.replicates, method.seed, level);
-        return c;
-    } else {
-        detail::fail(who, "method",
-                     mname + " needs the weighted add of measure " + c.measure +
-                         " (bootstrap counts as frequency weights)");
-    }
+    const std::size_t n = detail::input_rows(truth);
+    std::vector<std::size_t> rows(n);
+    for (std::size_t i = 0; i < n; ++i)
+        rows[i] = i;
+    const split s{{}, rows, 0, 0, 0, {}, split_design::random};
+    aggregator a(m), b(m);
+    a.record(s, truth, prediction_a);
+    b.record(s, truth, prediction_b);
+    return compare(a, b, m, method, level);
 }
 
 namespace detail::cmp {

@@ -10,53 +10,34 @@
 //   acc.merge(other_acc);                           // exact combination of two shards
 //   double now = acc.value();  acc.reset();
 //
-// A measure knows its name, its direction (lower or higher is better), the kind of
-// prediction it needs, and makes accumulators. Accumulators expose their state to
-// visit_state(f) (fields in a fixed order), which serialisation and merging tests use.
+// A measure is a small copyable struct that declares (core/traits.hpp, core/kinds.hpp,
+// core/capabilities.hpp):
+//   static constexpr heldout::direction better;         lower_is_better or higher_is_better
+//   static constexpr heldout::prediction_kind kind;     or `using prediction = heldout::kinds::...;`
+//   using truth = heldout::kinds::...;                  optional (the classic one for its prediction)
+//   using capabilities = heldout::offers<...>;          optional (none)
+//   static constexpr std::string_view key = "...";      its identity in bytes (cap::serialisable)
+//   std::string name() const;                           for people: shows non-default parameters
+//   bool operator==(const M&) const = default;          when it has parameters (data members)
+//   accumulator() const;                                a running state: add, merge, value, reset
+// heldout::check_measure<M>() checks all of it with readable messages; evaluate, the
+// aggregator and compare call it.
 #pragma once
 
+#include <heldout/core/capabilities.hpp>
 #include <heldout/core/error.hpp>
+#include <heldout/core/kinds.hpp>
+#include <heldout/core/traits.hpp>
 #include <heldout/core/values.hpp>
 
 #include <concepts>
+#include <cstdint>
+#include <span>
 #include <string>
 #include <string_view>
 #include <utility>
 
 HELDOUT_NAMESPACE_BEGIN
-
-/// Which way a measure improves.
-enum class direction { lower_is_better, higher_is_better };
-
-/// True when value a is better than value b under direction d.
-constexpr bool better(direction d, double a, double b) noexcept {
-    return d == direction::lower_is_better ? a < b : a > b;
-}
-
-/// The kind of prediction a measure needs.
-enum class prediction_kind {
-    real,               ///< real-valued prediction of a real truth (regression)
-    score,              ///< real-valued score for a 0/1 truth, higher = more likely 1 (ranking, margins)
-    probability,        ///< P(y = 1) in [0, 1] for a 0/1 truth
-    label,              ///< a class label 0..k-1 for a class truth
-    class_probabilities ///< an n x k matrix of class probabilities for a class truth
-};
-
-constexpr std::string_view to_string(prediction_kind k) noexcept {
-    switch (k) {
-    case prediction_kind::real:
-        return "real value";
-    case prediction_kind::score:
-        return "binary score";
-    case prediction_kind::probability:
-        return "probability";
-    case prediction_kind::label:
-        return "class label";
-    case prediction_kind::class_probabilities:
-        return "class-probability rows";
-    }
-    return "?";
-}
 
 /// The running state of a measure: reset, merge with its own kind, read the value.
 template <class A>
@@ -71,7 +52,7 @@ template <class M>
 concept outer_measure = std::copyable<M> && requires(const M& m) {
     { m.name() } -> std::convertible_to<std::string>;
     { M::better } -> std::convertible_to<direction>;
-    { M::kind } -> std::convertible_to<prediction_kind>;
+    typename prediction_kind_t<M>;
     { m.accumulator() } -> accumulator;
 };
 
@@ -92,17 +73,141 @@ concept scores_weighted = outer_measure<M> && requires(accumulator_t<M>& a, cons
 };
 
 namespace detail {
+
+/// A typical input of kind K, to check a measure's members against.
+template <class K>
+struct sample_input {
+    using type = typename K::view; // a kind added by another family names its view
+};
+template <>
+struct sample_input<kinds::real> {
+    using type = std::span<const double>;
+};
+template <>
+struct sample_input<kinds::binary> {
+    using type = std::span<const std::uint8_t>;
+};
+template <>
+struct sample_input<kinds::label> {
+    using type = std::span<const int>;
+};
+template <>
+struct sample_input<kinds::score> {
+    using type = std::span<const double>;
+};
+template <>
+struct sample_input<kinds::probability> {
+    using type = std::span<const double>;
+};
+template <>
+struct sample_input<kinds::class_probabilities> {
+    using type = row_matrix<double>;
+};
+
+template <class M>
+using sample_truth_t = typename sample_input<truth_kind_t<M>>::type;
+template <class M>
+using sample_prediction_t = typename sample_input<prediction_kind_t<M>>::type;
+
+template <class M>
+concept has_row_losses = requires(const M& m, const sample_truth_t<M>& t, const sample_prediction_t<M>& p,
+                                  std::span<double> out) { m.row_losses(t, p, out); };
+template <class M>
+concept has_case_components = requires(const M& m, const sample_truth_t<M>& t, const sample_prediction_t<M>& p) {
+    { m.case_components(t, p) } -> std::same_as<heldout::case_components>;
+};
+template <class M>
+concept has_score_set = requires(const accumulator_t<M>& a, const sample_truth_t<M>& t, const sample_prediction_t<M>& p,
+                                 std::span<const double> w) {
+    { a.score_set(t, p) } -> std::convertible_to<double>;
+    { a.score_set(t, p, w) } -> std::convertible_to<double>;
+};
+template <class M>
+concept has_resampler = requires(const M& m, const sample_truth_t<M>& t, const sample_prediction_t<M>& p,
+                                 std::string_view who) { m.resampler(t, p, who); };
+
+struct null_visitor {
+    template <class X>
+    void operator()(const X&) const noexcept {}
+};
+template <class M>
+concept has_serialisable_parts = requires(const accumulator_t<M>& ca, accumulator_t<M>& a) {
+    { M::key } -> std::convertible_to<std::string_view>;
+    { ca.measure() } -> std::convertible_to<M>;
+    ca.visit_state(null_visitor{});
+    a.visit_state(null_visitor{});
+};
+
+} // namespace detail
+
+/// Checks everything measure M declares, with a message naming what is wrong; evaluate,
+/// the aggregator and compare call it. A capability declared but not implemented, or
+/// implemented but not declared, does not compile.
+template <class M>
+constexpr bool check_measure() {
+    static_assert(std::copyable<M>, "heldout: a measure is a copyable struct");
+    static_assert(requires { { M::better } -> std::convertible_to<direction>; },
+                  "heldout: a measure declares `static constexpr heldout::direction better`");
+    static_assert(data_kind<prediction_kind_t<M>>,
+                  "heldout: a measure declares its prediction kind: `static constexpr heldout::prediction_kind kind` "
+                  "or `using prediction = heldout::kinds::...;`");
+    static_assert(data_kind<truth_kind_t<M>>, "heldout: a measure's `truth` is a kind from heldout::kinds");
+    static_assert(requires(const M& m) { { m.name() } -> std::convertible_to<std::string>; },
+                  "heldout: a measure has `std::string name() const`");
+    static_assert(requires(const M& m) { { m.accumulator() } -> accumulator; },
+                  "heldout: a measure's accumulator() returns a copyable state with reset(), merge(other) and "
+                  "value()");
+    static_assert(std::is_empty_v<M> || std::equality_comparable<M>,
+                  "heldout: this measure has data members (parameters), so its identity includes them: declare how "
+                  "they compare, e.g. `bool operator==(const my_measure&) const = default;`");
+    if constexpr (offers_v<M, cap::row_losses>)
+        static_assert(detail::has_row_losses<M>, "heldout: the measure declares cap::row_losses but has no `void "
+                                                 "row_losses(truth, prediction, std::span<double> out) const`");
+    else
+        static_assert(!detail::has_row_losses<M>,
+                      "heldout: the measure has row_losses(...) but does not declare heldout::cap::row_losses");
+    if constexpr (offers_v<M, cap::case_components>)
+        static_assert(detail::has_case_components<M>, "heldout: the measure declares cap::case_components but has no "
+                                                      "`heldout::case_components case_components(truth, prediction) "
+                                                      "const`");
+    else
+        static_assert(!detail::has_case_components<M>, "heldout: the measure has case_components(...) but does not "
+                                                       "declare heldout::cap::case_components");
+    if constexpr (offers_v<M, cap::whole_set>)
+        static_assert(detail::has_score_set<M>, "heldout: the measure declares cap::whole_set but its accumulator has "
+                                                "no `double score_set(truth, prediction[, weights]) const`");
+    else
+        static_assert(!detail::has_score_set<M>,
+                      "heldout: the accumulator has score_set(...) but the measure does not declare "
+                      "heldout::cap::whole_set");
+    if constexpr (offers_v<M, cap::resampling>)
+        static_assert(detail::has_resampler<M>, "heldout: the measure declares cap::resampling but has no "
+                                                "`resampler(truth, prediction, who) const`");
+    else
+        static_assert(!detail::has_resampler<M>,
+                      "heldout: the measure has resampler(...) but does not declare heldout::cap::resampling");
+    if constexpr (offers_v<M, cap::serialisable>)
+        static_assert(detail::has_serialisable_parts<M>,
+                      "heldout: the measure declares cap::serialisable: it needs `static constexpr std::string_view "
+                      "key`, and its accumulator `measure()` and visit_state(f) (const and non-const)");
+    return true;
+}
+
+namespace detail {
 // Readable refusals for wrong pairings, checked before the generic one.
 template <class M, class P>
 constexpr void check_prediction_type() {
     using Pr = std::remove_cvref_t<P>;
-    if constexpr (M::kind == prediction_kind::label) {
+    using K = prediction_kind_t<M>;
+    if constexpr (std::is_same_v<K, kinds::label>) {
         static_assert(label_range<Pr>, "heldout: this measure scores class labels (integral elements); real-valued "
-                                       "scores become labels only through heldout::labels_at(scores, threshold)");
-    } else if constexpr (M::kind == prediction_kind::class_probabilities) {
+                                       "scores become labels only through heldout::labels_at(scores, threshold) or "
+                                       "the measure heldout::at_threshold(m, threshold)");
+    } else if constexpr (std::is_same_v<K, kinds::class_probabilities>) {
         static_assert(probability_rows<Pr>, "heldout: this measure needs class-probability rows (an Eigen matrix, "
                                             "or heldout::rows(flat, k) over a row-major range)");
-    } else {
+    } else if constexpr (std::is_same_v<K, kinds::real> || std::is_same_v<K, kinds::score> ||
+                         std::is_same_v<K, kinds::probability>) {
         static_assert(real_range<Pr>, "heldout: this measure needs floating-point predictions (real values, scores "
                                       "or probabilities), not integer class labels");
     }
@@ -112,12 +217,13 @@ constexpr void check_prediction_type() {
 /// Scores a whole set of predictions with measure m.
 template <outer_measure M, class T, class P>
 double evaluate(const M& m, const T& truth, const P& prediction) {
+    static_assert(check_measure<M>());
     detail::check_prediction_type<M, P>();
     static_assert(scores<M, T, P>, "heldout: this measure cannot score this truth/prediction pairing");
     auto acc = m.accumulator();
-    // A measure whose state carries its rows (the ranking ones) scores a whole set in place
-    // through score_set, without copying it into the state first.
-    if constexpr (requires { acc.score_set(truth, prediction); }) {
+    // A measure whose state carries its rows (the ranking ones) scores a whole set in place,
+    // without copying it into the state first.
+    if constexpr (offers_v<M, cap::whole_set>) {
         return acc.score_set(truth, prediction);
     } else {
         acc.add(truth, prediction);
@@ -128,11 +234,12 @@ double evaluate(const M& m, const T& truth, const P& prediction) {
 /// Scores a whole set of weighted predictions with measure m.
 template <outer_measure M, class T, class P, class W>
 double evaluate(const M& m, const T& truth, const P& prediction, const W& weights) {
+    static_assert(check_measure<M>());
     detail::check_prediction_type<M, P>();
     static_assert(scores_weighted<M, T, P, W>, "heldout: this measure cannot score this truth/prediction/weights "
                                                "pairing (weights are a contiguous range of numbers)");
     auto acc = m.accumulator();
-    if constexpr (requires { acc.score_set(truth, prediction, weights); }) {
+    if constexpr (offers_v<M, cap::whole_set>) {
         return acc.score_set(truth, prediction, weights);
     } else {
         acc.add(truth, prediction, weights);

@@ -413,7 +413,12 @@ public:
         }
         ++count_;
     }
+    /// Combines two shards; both must be of the same measure (equal parameters).
     void merge(const binary_mean_accumulator& o) {
+        if (!(policy_ == o.policy_))
+            fail_state(who(), "other",
+                       "cannot merge a state of " + o.measure().name() + " into one of " + measure().name() +
+                           ": the parameters differ");
         totals_.merge(o.totals_);
         count_ += o.count_;
     }
@@ -435,6 +440,8 @@ public:
     std::uint64_t count() const noexcept { return count_; }
     double total_weight() const noexcept { return totals_.weight.value() + totals_.infinite_weight; }
     const Policy& parameters() const noexcept { return policy_; }
+    /// The measure this state belongs to (its parameters included).
+    auto measure() const { return policy_.measure(); }
 
     template <class F>
     void visit_state(F&& f) {

@@ -34,6 +34,7 @@
 #pragma once
 
 #include <heldout/core/error.hpp>
+#include <heldout/estimate/methods.hpp>
 
 #include <cstddef>
 #include <cstdint>
@@ -41,22 +42,6 @@
 
 HELDOUT_NAMESPACE_BEGIN
 namespace ci {
-
-/// Which interval method.
-enum class method_id : unsigned char {
-    automatic,
-    t,
-    wilson,
-    clopper_pearson,
-    agresti_coull,
-    bootstrap_percentile,
-    bca,
-    delong,
-    corrected_t,
-    naive_t,
-    bootstrap_632,
-    bootstrap_632_plus
-};
 
 /// A method and its settings (bootstrap replicates and seed; ignored by the others).
 struct method {
@@ -89,67 +74,11 @@ inline constexpr method naive_t{method_id::naive_t};
 inline constexpr method bootstrap_632{method_id::bootstrap_632};
 inline constexpr method bootstrap_632_plus{method_id::bootstrap_632_plus};
 
-/// The identifier used in exports ("corrected_t").
-constexpr std::string_view id_text(method_id m) noexcept {
-    switch (m) {
-    case method_id::automatic:
-        return "automatic";
-    case method_id::t:
-        return "t";
-    case method_id::wilson:
-        return "wilson";
-    case method_id::clopper_pearson:
-        return "clopper_pearson";
-    case method_id::agresti_coull:
-        return "agresti_coull";
-    case method_id::bootstrap_percentile:
-        return "bootstrap_percentile";
-    case method_id::bca:
-        return "bca";
-    case method_id::delong:
-        return "delong";
-    case method_id::corrected_t:
-        return "corrected_t";
-    case method_id::naive_t:
-        return "naive_t";
-    case method_id::bootstrap_632:
-        return "bootstrap_632";
-    case method_id::bootstrap_632_plus:
-        return "bootstrap_632_plus";
-    }
-    return "?";
-}
+/// The identifier used in exports ("corrected_t"): the method table's key.
+constexpr std::string_view id_text(method_id m) noexcept { return info(m).key; }
 
-/// The label printed beside an estimate ("corrected t (Nadeau-Bengio)").
-constexpr std::string_view label(method_id m) noexcept {
-    switch (m) {
-    case method_id::automatic:
-        return "automatic";
-    case method_id::t:
-        return "Student t";
-    case method_id::wilson:
-        return "Wilson";
-    case method_id::clopper_pearson:
-        return "Clopper-Pearson";
-    case method_id::agresti_coull:
-        return "Agresti-Coull";
-    case method_id::bootstrap_percentile:
-        return "percentile bootstrap";
-    case method_id::bca:
-        return "BCa bootstrap";
-    case method_id::delong:
-        return "DeLong";
-    case method_id::corrected_t:
-        return "corrected t (Nadeau-Bengio)";
-    case method_id::naive_t:
-        return "naive t over splits (undercovers)";
-    case method_id::bootstrap_632:
-        return ".632 bootstrap";
-    case method_id::bootstrap_632_plus:
-        return ".632+ bootstrap";
-    }
-    return "?";
-}
+/// The label printed beside an estimate ("corrected t (Nadeau-Bengio)"): the method table's label.
+constexpr std::string_view label(method_id m) noexcept { return info(m).label; }
 
 } // namespace ci
 HELDOUT_NAMESPACE_END

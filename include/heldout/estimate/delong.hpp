@@ -30,6 +30,7 @@
 // L S L' -> undefined_error; the logit interval at A = 0 or 1 is undefined for the same reason.
 #pragma once
 
+#include <heldout/core/capabilities.hpp>
 #include <heldout/core/values.hpp>
 #include <heldout/detail/isa.hpp>
 #include <heldout/detail/ranks.hpp>
@@ -409,6 +410,79 @@ auc_estimate delong_auc(const T& truth, const S& scores, double level = 0.95,
         e.upper = 1 / (1 + std::exp(-(c + h)));
     }
     return e;
+}
+
+/// The DeLong interval of a two-sample U statistic (the ROC AUC, or any measure with
+/// cap::case_components) from its structural components: Var = S10/m + S01/n with
+/// S10 = sum (V10_i - A)^2/(m - 1) over the m cases and S01 likewise over the n controls
+/// (DeLong, DeLong & Clarke-Pearson 1988); logit interval by default, as delong_auc.
+template <class Components = case_components>
+auc_estimate delong_interval(const Components& c, double level = 0.95,
+                             auc_interval_method method = auc_interval_method::logit) {
+    constexpr std::string_view who = "heldout::delong_interval";
+    const double z = detail::delong_z(who, level);
+    detail::check_delong_counts(who, c.cases.size(), c.controls.size());
+    const double a = c.value;
+    detail::compensated_sum s10, s01;
+    for (const double v : c.cases)
+        s10.add((v - a) * (v - a));
+    for (const double v : c.controls)
+        s01.add((v - a) * (v - a));
+    const double md = static_cast<double>(c.cases.size()), nd = static_cast<double>(c.controls.size());
+    const double var = s10.value() / (md - 1) / md + s01.value() / (nd - 1) / nd;
+    if (!(var > 0))
+        detail::fail_undefined(who, "the DeLong variance is zero (value " + detail::number_text(a) +
+                                        ": every case outranks, or ties with, the controls alike)");
+    auc_estimate e;
+    e.value = a;
+    e.se = std::sqrt(var);
+    e.level = level;
+    if (method == auc_interval_method::wald) {
+        e.lower = a - z * e.se;
+        e.upper = a + z * e.se;
+    } else {
+        if (!(a > 0 && a < 1))
+            detail::fail_undefined(who, "the logit interval needs a value strictly between 0 and 1");
+        const double lc = std::log(a / (1 - a)), h = z * e.se / (a * (1 - a));
+        e.lower = 1 / (1 + std::exp(-(lc - h)));
+        e.upper = 1 / (1 + std::exp(-(lc + h)));
+    }
+    return e;
+}
+
+/// The DeLong test of the difference of two U statistics on the same cases, from the two
+/// models' structural components (cases and controls aligned): z = (A_a - A_b)/se with
+/// se^2 = Var_a + Var_b - 2 Cov_ab, and the Wald interval of the difference.
+template <class Components = case_components>
+auc_difference_test delong_components_test(const Components& a, const Components& b, double level = 0.95) {
+    constexpr std::string_view who = "heldout::delong_components_test";
+    const double z = detail::delong_z(who, level);
+    if (a.cases.size() != b.cases.size() || a.controls.size() != b.controls.size())
+        detail::fail(who, "b", "the two models' components cover different cases");
+    detail::check_delong_counts(who, a.cases.size(), a.controls.size());
+    detail::compensated_sum s10, s01;
+    for (std::size_t i = 0; i < a.cases.size(); ++i) {
+        const double d = (a.cases[i] - a.value) - (b.cases[i] - b.value);
+        s10.add(d * d);
+    }
+    for (std::size_t j = 0; j < a.controls.size(); ++j) {
+        const double d = (a.controls[j] - a.value) - (b.controls[j] - b.value);
+        s01.add(d * d);
+    }
+    const double md = static_cast<double>(a.cases.size()), nd = static_cast<double>(a.controls.size());
+    const double var = s10.value() / (md - 1) / md + s01.value() / (nd - 1) / nd;
+    auc_difference_test t;
+    t.difference = a.value - b.value;
+    if (!(var > 0))
+        detail::fail_undefined(who, "the variance of the difference is zero (e.g. both values are 1, or the two "
+                                    "models rank the cases alike)");
+    t.se = std::sqrt(var);
+    t.z = t.difference / t.se;
+    t.p_value = 2 * boost::math::cdf(boost::math::complement(boost::math::normal(), std::abs(t.z)));
+    t.lower = t.difference - z * t.se;
+    t.upper = t.difference + z * t.se;
+    t.level = level;
+    return t;
 }
 
 /// DeLong test of AUC(a) - AUC(b), both models scored on the same cases.

@@ -264,11 +264,7 @@ struct outer_outcome {
     std::optional<R> predictions; // of the chosen candidate on the outer test rows
 };
 
-inline std::string undefined_text(const undefined_error& e) {
-    const std::string w = e.what();
-    const auto at = w.find(": undefined: ");
-    return at == std::string::npos ? w : w.substr(at + 13);
-}
+inline std::string undefined_text(const undefined_error& e) { return e.problem(); }
 
 /// Steps 1-4 of the header comment for one outer split.
 template <class R, class P, class E, class F, class M>
@@ -281,9 +277,9 @@ outer_outcome<R> run_outer_split(const split& o, const P& inner_plan, const stra
     std::vector<E> truth;
 
     auto checked_size = [&](const R& p, std::size_t expected, std::size_t c, const std::string& where) {
-        if (range_rows(p) != expected)
+        if (input_rows(p) != expected)
             fail(tuned_who, "fit_predict",
-                 "candidate " + std::to_string(c) + " on " + where + ": " + std::to_string(range_rows(p)) +
+                 "candidate " + std::to_string(c) + " on " + where + ": " + std::to_string(input_rows(p)) +
                      " predictions for " + std::to_string(expected) + " test rows");
     };
 

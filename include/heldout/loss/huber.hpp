@@ -15,6 +15,7 @@
 #include <heldout/core/loss.hpp>
 
 #include <cmath>
+#include <string>
 #include <string_view>
 
 HELDOUT_NAMESPACE_BEGIN
@@ -26,6 +27,10 @@ struct huber {
     static constexpr bool propagates_non_finite = true; // a NaN or inf input gives a non-finite value
 
     double delta = 1.0;
+
+    bool operator==(const huber&) const = default;
+    /// The parameter for printed names ("delta 1.5").
+    std::string parameters_text() const { return "delta " + detail::number_text(delta); }
 
     /// The parameter, for serialised accumulator state.
     template <class F>

@@ -16,6 +16,7 @@
 #include <heldout/core/error.hpp>
 #include <heldout/core/loss.hpp>
 
+#include <string>
 #include <string_view>
 
 HELDOUT_NAMESPACE_BEGIN
@@ -27,6 +28,10 @@ struct pinball {
     static constexpr bool propagates_non_finite = true; // a NaN or inf input gives a non-finite value
 
     double tau = 0.5;
+
+    bool operator==(const pinball&) const = default;
+    /// The parameter for printed names ("tau 1.5").
+    std::string parameters_text() const { return "tau " + detail::number_text(tau); }
 
     /// The parameter, for serialised accumulator state.
     template <class F>

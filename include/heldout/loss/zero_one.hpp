@@ -12,8 +12,10 @@
 // For class labels use the label measures (classification error).
 #pragma once
 
+#include <heldout/core/error.hpp>
 #include <heldout/core/loss.hpp>
 
+#include <string>
 #include <string_view>
 
 HELDOUT_NAMESPACE_BEGIN
@@ -25,6 +27,10 @@ struct zero_one {
     static constexpr truth_kind truth = truth_kind::binary;
 
     double threshold = 0.0;
+
+    bool operator==(const zero_one&) const = default;
+    /// The parameter for printed names ("threshold 1.5").
+    std::string parameters_text() const { return "threshold " + detail::number_text(threshold); }
 
     /// The parameter, for serialised accumulator state.
     template <class F>

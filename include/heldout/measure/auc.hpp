@@ -33,7 +33,9 @@
 #pragma once
 
 #include <heldout/core/measure.hpp>
+#include <heldout/detail/auc_resampling.hpp>
 #include <heldout/detail/ranks.hpp>
+#include <heldout/measure/ranked_sample.hpp>
 
 #include <algorithm>
 #include <cmath>
@@ -277,13 +279,17 @@ public:
     }
     void merge(const grouped_accumulator& o) {
         if (!(eval_ == o.eval_))
-            fail(eval_.who(), "other", "cannot merge accumulators of different parameters");
+            fail_state(eval_.who(), "other",
+                       "cannot merge a state of " + o.eval_.measure().name() + " into one of " +
+                           eval_.measure().name() + ": the parameters differ");
         store_.merge(o.store_);
     }
     double value() const { return eval_(store_groups(eval_.who(), store_, thread_scratch()), store_.weighted()); }
     void reset() noexcept { store_.reset(); }
     std::size_t count() const noexcept { return store_.size(); }
     const Eval& parameters() const noexcept { return eval_; }
+    /// The measure this state belongs to (its parameters included).
+    auto measure() const { return eval_.measure(); }
 
     template <class F>
     void visit_state(F&& f) {
@@ -304,6 +310,8 @@ private:
 } // namespace detail
 
 namespace measure {
+
+struct auc;
 
 /// Running state of measure::auc: carries the scores; merge appends, value() sorts.
 class auc_accumulator {
@@ -342,6 +350,8 @@ public:
         return detail::exact_weighted_auc(who(), s, y, w, detail::thread_scratch());
     }
     void merge(const auc_accumulator& o) { store_.merge(o.store_); }
+    /// The measure this state belongs to.
+    auc measure() const;
 
     /// The exact AUC of everything added (undefined_error when a class is absent).
     double value() const {
@@ -376,163 +386,60 @@ private:
 struct auc {
     static constexpr direction better = direction::higher_is_better;
     static constexpr prediction_kind kind = prediction_kind::score;
+    using capabilities = offers<cap::whole_set, cap::case_components, cap::resampling, cap::serialisable>;
+    static constexpr std::string_view key = "auc";
+
     std::string name() const { return "AUC"; }
     auc_accumulator accumulator() const { return {}; }
+
+    /// DeLong's structural components (DeLong, DeLong & Clarke-Pearson 1988): for each case
+    /// (truth 1, in row order) the share of controls it outranks, ties one half; for each
+    /// control the share of cases that outrank it. From one sort (Sun & Xu 2014's midranks).
+    template <label_range T, real_range S>
+    heldout::case_components case_components(const T& truth, const S& scores) const {
+        const ranked_sample r(truth, scores);
+        heldout::case_components c;
+        c.value = r.auc(); // undefined_error when a class is absent
+        const std::size_t n = r.size();
+        const double m = static_cast<double>(r.positives()), q = static_cast<double>(r.negatives());
+        std::vector<double> per_row(n);
+        std::vector<std::uint8_t> is_case(n);
+        std::uint64_t neg_below = 0, pos_below = 0;
+        for (std::size_t start = 0; start < n;) {
+            std::size_t end = start;
+            std::uint64_t gp = 0, gn = 0;
+            for (;; ++end) {
+                (r.positive(end) ? gp : gn) += 1;
+                if (r.ends_group(end))
+                    break;
+            }
+            const std::uint64_t pos_above = r.positives() - pos_below - gp;
+            const double v10 = static_cast<double>(2 * neg_below + gn) / (2 * q);
+            const double v01 = static_cast<double>(2 * pos_above + gp) / (2 * m);
+            for (std::size_t i = start; i <= end; ++i) {
+                per_row[r.row(i)] = r.positive(i) ? v10 : v01;
+                is_case[r.row(i)] = r.positive(i) ? 1 : 0;
+            }
+            neg_below += gn;
+            pos_below += gp;
+            start = end + 1;
+        }
+        c.cases.reserve(r.positives());
+        c.controls.reserve(r.negatives());
+        for (std::size_t i = 0; i < n; ++i)
+            (is_case[i] ? c.cases : c.controls).push_back(per_row[i]);
+        return c;
+    }
+
+    /// The bootstrap engine: one sort, then one integer pass per replicate (estimate/bootstrap.hpp).
+    template <label_range T, real_range S>
+    detail::auc_resample_engine<T, S> resampler(const T& truth, const S& scores, std::string_view who) const {
+        return detail::auc_resample_engine<T, S>(truth, scores, who);
+    }
 };
+
+inline auc auc_accumulator::measure() const { return {}; }
 
 } // namespace measure
-
-/// A sample sorted once by score, with exact tie groups, for fast AUCs of re-weighted rows
-/// (the bootstrap: one O(n) pass per replicate instead of a resample and a sort).
-///
-///   heldout::ranked_sample r(truth, scores);
-///   std::vector<std::uint32_t> c(r.size());           // multiplicity of the row at each rank
-///   for (std::size_t i = 0; i < r.size(); ++i) ...     // r.row(i): original row of rank i
-///   double a = r.auc_in_rank_order(c);
-///
-/// Ranks run 0..n-1 in ascending score order (ties in original row order). No allocation
-/// after construction.
-class ranked_sample {
-public:
-    /// Sorts (truth, scores) once; the same checks and errors as measure::auc, except that a
-    /// missing class is reported only when an AUC is asked for.
-    template <label_range T, real_range S>
-    ranked_sample(const T& truth, const S& scores) {
-        static_assert(detail::rankable_score_v<element_t<S>>, "heldout: ranking measures take float or double scores");
-        auto y = values_of(truth, who(), "truth");
-        auto s = values_of(scores, who(), "scores");
-        build(y, s);
-    }
-
-    std::size_t size() const noexcept { return rows_.size(); }
-    std::size_t positives() const noexcept { return static_cast<std::size_t>(positives_); }
-    std::size_t negatives() const noexcept { return static_cast<std::size_t>(negatives_); }
-    /// Number of distinct scores.
-    std::size_t groups() const noexcept { return groups_; }
-
-    /// Original row of rank i.
-    std::uint32_t row(std::size_t i) const noexcept { return rows_[i]; }
-    /// Original rows in rank order (ascending score).
-    std::span<const std::uint32_t> rows() const noexcept { return rows_; }
-    /// True when the row at rank i is a positive (truth 1).
-    bool positive(std::size_t i) const noexcept { return (flags_[i] & 1u) != 0; }
-    /// True when rank i is the last of its tie group (the next rank has a higher score).
-    bool ends_group(std::size_t i) const noexcept { return (flags_[i] & 2u) != 0; }
-
-    /// The exact AUC of the sample (undefined_error when a class is absent).
-    double auc() const {
-        detail::check_both_classes(who(), static_cast<double>(positives_), static_cast<double>(negatives_), false);
-        return static_cast<double>(static_cast<long double>(doubled_u_) /
-                                   (2.0L * static_cast<long double>(positives_) * negatives_));
-    }
-
-    /// The AUC with weights indexed by original row (one O(n) pass, no sort).
-    double auc(std::span<const double> weights_by_row) const {
-        detail::check_same_size(who(), "weights_by_row", size(), weights_by_row.size(), "the sample");
-        detail::compensated_sum u, below, pos;
-        double gp = 0, gn = 0;
-        bool bad = false;
-        const std::size_t n = size();
-        for (std::size_t i = 0; i < n; ++i) {
-            const double w = weights_by_row[rows_[i]];
-            bad |= !(w >= 0 && w <= std::numeric_limits<double>::max());
-            const std::uint8_t f = flags_[i];
-            ((f & 1u) ? gp : gn) += w;
-            if (f & 2u) {
-                u.add(gp * (below.value() + 0.5 * gn));
-                below.add(gn);
-                pos.add(gp);
-                gp = gn = 0;
-            }
-        }
-        if (bad)
-            detail::check_weights(who(), weights_by_row);
-        detail::check_both_classes(who(), pos.value(), below.value(), true);
-        return u.value() / pos.value() / below.value();
-    }
-
-    /// The AUC with integer multiplicities given in rank order (counts[i] for rank i), e.g.
-    /// multinomial bootstrap counts: exact integer arithmetic, one O(n) pass.
-    double auc_in_rank_order(std::span<const std::uint32_t> counts) const {
-        const auto r = rank_order_sums(counts);
-        detail::check_both_classes(who(), static_cast<double>(r.positives), static_cast<double>(r.negatives), true);
-        return ratio(r);
-    }
-
-    /// As auc_in_rank_order, but an empty optional instead of undefined_error when the
-    /// counts leave a class without weight (common in small bootstrap samples).
-    std::optional<double> try_auc_in_rank_order(std::span<const std::uint32_t> counts) const {
-        const auto r = rank_order_sums(counts);
-        if (r.positives == 0 || r.negatives == 0)
-            return std::nullopt;
-        return ratio(r);
-    }
-
-private:
-    static std::string_view who() { return "heldout::ranked_sample"; }
-
-    static double ratio(const detail::rank_sum_counts& r) noexcept {
-        return static_cast<double>(static_cast<long double>(r.doubled_u) /
-                                   (2.0L * static_cast<long double>(r.positives) * r.negatives));
-    }
-
-    detail::rank_sum_counts rank_order_sums(std::span<const std::uint32_t> counts) const {
-        detail::check_same_size(who(), "counts", size(), counts.size(), "the sample");
-        std::uint64_t u2 = 0, neg_below = 0, gp = 0, gn = 0, pos = 0;
-        const std::size_t n = size();
-        for (std::size_t i = 0; i < n; ++i) {
-            const std::uint64_t c = counts[i];
-            const std::uint8_t f = flags_[i];
-            const std::uint64_t is_pos = 0 - static_cast<std::uint64_t>(f & 1u);
-            gp += c & is_pos;
-            gn += c & ~is_pos;
-            const std::uint64_t end = 0 - static_cast<std::uint64_t>((f >> 1) & 1u);
-            u2 += (gp * (2 * neg_below + gn)) & end;
-            neg_below += gn & end;
-            pos += gp & end;
-            gp &= ~end;
-            gn &= ~end;
-        }
-        // 2U <= 2 m n stays below 2^64 while the total count is below 2^32.
-        if (pos + neg_below > std::numeric_limits<std::uint32_t>::max())
-            detail::fail(who(), "counts", "total count exceeds 2^32 - 1");
-        return {u2, pos, neg_below};
-    }
-
-    template <class L, class T>
-    void build(std::span<const L> y, std::span<const T> s) {
-        const auto r = detail::sort_rows(who(), s, y, detail::thread_scratch());
-        const std::size_t n = r.n;
-        rows_.resize(n);
-        flags_.resize(n);
-        std::uint64_t u2 = 0, neg_below = 0, gp = 0, gn = 0, pos = 0;
-        for (std::size_t i = 0; i < n; ++i) {
-            const std::uint32_t v = r.at(i);
-            const std::uint32_t l = v >> 31;
-            const bool end = i + 1 == n || !r.same(i + 1);
-            rows_[i] = v & ~detail::label_bit;
-            flags_[i] = static_cast<std::uint8_t>(l | (end ? 2u : 0u));
-            gp += l;
-            gn += 1 - l;
-            if (end) {
-                u2 += gp * (2 * neg_below + gn);
-                neg_below += gn;
-                pos += gp;
-                gp = gn = 0;
-                ++groups_;
-            }
-        }
-        doubled_u_ = u2;
-        positives_ = pos;
-        negatives_ = neg_below;
-    }
-
-    std::vector<std::uint32_t> rows_;
-    std::vector<std::uint8_t> flags_; // bit 0: label, bit 1: last rank of its tie group
-    std::uint64_t doubled_u_ = 0;
-    std::uint64_t positives_ = 0;
-    std::uint64_t negatives_ = 0;
-    std::size_t groups_ = 0;
-};
 
 HELDOUT_NAMESPACE_END

@@ -36,6 +36,9 @@ enum class pr_start : std::uint8_t {
     first_precision ///< (0, P_1): the precision of the first threshold
 };
 
+struct average_precision;
+struct auprc;
+
 namespace detail_pr {
 
 /// Visits the PR points (recall, precision) of the groups in decreasing score order.
@@ -71,6 +74,7 @@ struct ap_eval {
         return area.value();
     }
     bool operator==(const ap_eval&) const = default;
+    measure::average_precision measure() const;
     template <class F>
     void visit_state(F&&) const {}
 };
@@ -93,6 +97,7 @@ struct auprc_eval {
         return area.value();
     }
     bool operator==(const auprc_eval&) const = default;
+    measure::auprc measure() const;
     template <class F>
     void visit_state(F&& f) {
         f(start);
@@ -114,6 +119,8 @@ using auprc_accumulator = detail::grouped_accumulator<detail_pr::auprc_eval>;
 struct average_precision {
     static constexpr direction better = direction::higher_is_better;
     static constexpr prediction_kind kind = prediction_kind::score;
+    using capabilities = offers<cap::whole_set, cap::serialisable>;
+    static constexpr std::string_view key = "average_precision";
     std::string name() const { return "average precision"; }
     average_precision_accumulator accumulator() const { return {}; }
 };
@@ -122,12 +129,22 @@ struct average_precision {
 struct auprc {
     static constexpr direction better = direction::higher_is_better;
     static constexpr prediction_kind kind = prediction_kind::score;
+    using capabilities = offers<cap::whole_set, cap::serialisable>;
+    static constexpr std::string_view key = "auprc";
     pr_start start = pr_start::precision_one;
-    std::string name() const { return "PR AUC (trapezoidal)"; }
+    bool operator==(const auprc&) const = default;
+    std::string name() const {
+        return start == pr_start::precision_one ? "PR AUC (trapezoidal)"
+                                                : "PR AUC (trapezoidal, from the first precision)";
+    }
     auprc_accumulator accumulator() const {
         return auprc_accumulator(detail_pr::auprc_eval{static_cast<std::uint8_t>(start)});
     }
 };
 
 } // namespace measure
+
+inline measure::average_precision measure::detail_pr::ap_eval::measure() const { return {}; }
+inline measure::auprc measure::detail_pr::auprc_eval::measure() const { return {static_cast<measure::pr_start>(start)}; }
+
 HELDOUT_NAMESPACE_END

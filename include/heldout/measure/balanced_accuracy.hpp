@@ -24,15 +24,22 @@ namespace measure {
 struct balanced_accuracy {
     static constexpr direction better = direction::higher_is_better;
     static constexpr prediction_kind kind = prediction_kind::label;
+    using capabilities = offers<cap::serialisable>;
+    static constexpr std::string_view key = "balanced_accuracy";
     /// Number of classes k; 0 infers it from the labels.
     std::size_t classes = 0;
 
-    std::string name() const { return "balanced accuracy"; }
+    bool operator==(const balanced_accuracy&) const = default;
+    std::string name() const {
+        return detail::with_parameters("balanced accuracy", classes == 0 ? "" : "classes " + std::to_string(classes));
+    }
+    /// The name in error messages (without the class count).
+    std::string message_name() const { return "balanced accuracy"; }
     table_accumulator<balanced_accuracy> accumulator() const { return table_accumulator<balanced_accuracy>(*this); }
 
     /// The value on a given confusion table (rows = true class, columns = predicted).
     double from_table(const Eigen::MatrixXd& table) const {
-        const std::string who = "measure " + name();
+        const std::string who = "measure " + message_name();
         const detail::table_view v = detail::view_of_table(who, table);
         return from_view(v, detail::table_margins(v), who);
     }

@@ -41,6 +41,8 @@ HELDOUT_NAMESPACE_BEGIN
 namespace measure {
 
 /// Running state of binned_auc: the bin layout and one weight histogram per class.
+struct binned_auc;
+
 class binned_auc_accumulator {
 public:
     binned_auc_accumulator() : binned_auc_accumulator(1024, 0.0, 1.0) {}
@@ -85,10 +87,13 @@ public:
         (y ? positive_ : negative_)[bin(s)] += w;
     }
 
+    /// The measure this state belongs to (bins and range included).
+    binned_auc measure() const;
+
     /// Exact: the histograms add (same layout required).
     void merge(const binned_auc_accumulator& o) {
         if (o.bins_ != bins_ || o.low_ != low_ || o.high_ != high_)
-            detail::fail(who(), "other",
+            detail::fail_state(who(), "other",
                          "different bins or range (" + std::to_string(o.bins_) + " bins on " + o.range() + " against " +
                              std::to_string(bins_) + " on " + range() + ")");
         for (std::size_t b = 0; b < positive_.size(); ++b) {
@@ -186,12 +191,24 @@ private:
 struct binned_auc {
     static constexpr direction better = direction::higher_is_better;
     static constexpr prediction_kind kind = prediction_kind::score;
+    using capabilities = offers<cap::serialisable>;
+    static constexpr std::string_view key = "binned_auc";
     std::size_t bins = 1024;
     double low = 0;
     double high = 1;
-    std::string name() const { return "binned AUC"; }
+    bool operator==(const binned_auc&) const = default;
+    std::string name() const {
+        std::string p;
+        detail::parameter_if<std::size_t>(p, "bins", bins, 1024, [](const std::size_t& b) { return std::to_string(b); });
+        if (low != 0 || high != 1)
+            p += (p.empty() ? "" : ", ") + std::string("range [") + detail::number_text(low) + ", " +
+                 detail::number_text(high) + "]";
+        return detail::with_parameters("binned AUC", p);
+    }
     binned_auc_accumulator accumulator() const { return binned_auc_accumulator(bins, low, high); }
 };
+
+inline binned_auc binned_auc_accumulator::measure() const { return {bins_, low_, high_}; }
 
 } // namespace measure
 HELDOUT_NAMESPACE_END

@@ -23,6 +23,9 @@
 #include <string_view>
 
 HELDOUT_NAMESPACE_BEGIN
+namespace measure {
+struct brier_score;
+}
 namespace detail {
 
 /// (p - y)^2 in double, in the form binary_pass wants.
@@ -50,6 +53,8 @@ struct brier_policy {
     void validate(std::string_view) const {}
     template <class F>
     void visit_state(F&&) const {}
+    bool operator==(const brier_policy&) const = default;
+    measure::brier_score measure() const;
 };
 
 } // namespace detail
@@ -64,9 +69,22 @@ struct brier_score {
     static constexpr direction better = direction::lower_is_better;
     static constexpr prediction_kind kind = prediction_kind::probability;
 
+    using capabilities = offers<cap::row_losses, cap::serialisable>;
+    static constexpr std::string_view key = "brier_score";
+
     std::string name() const { return "Brier score"; }
     brier_score_accumulator accumulator() const { return brier_score_accumulator(detail::brier_policy{}); }
+    /// (p - y)^2 of each row (rows that add() accepted).
+    template <value_range T, real_range P>
+    void row_losses(const T& truth, const P& prediction, std::span<double> out) const {
+        auto t = values_of(truth);
+        auto p = values_of(prediction);
+        for (std::size_t i = 0; i < out.size(); ++i)
+            out[i] = detail::brier_policy{}.exact(static_cast<double>(t[i]), static_cast<double>(p[i]));
+    }
 };
+
+struct multiclass_brier_score;
 
 /// Running state of multiclass_brier_score.
 class multiclass_brier_score_accumulator {
@@ -101,6 +119,8 @@ public:
         count_ = 0;
     }
     std::uint64_t count() const noexcept { return count_; }
+    /// The measure this state belongs to.
+    multiclass_brier_score measure() const;
 
     template <class F>
     void visit_state(F&& f) {
@@ -152,9 +172,33 @@ struct multiclass_brier_score {
     static constexpr direction better = direction::lower_is_better;
     static constexpr prediction_kind kind = prediction_kind::class_probabilities;
 
+    using capabilities = offers<cap::row_losses, cap::serialisable>;
+    static constexpr std::string_view key = "multiclass_brier_score";
+
     std::string name() const { return "multiclass Brier score"; }
     multiclass_brier_score_accumulator accumulator() const { return {}; }
+    /// sum_k (p_ik - [y_i = k])^2 of each row (rows that add() accepted).
+    template <label_range T, probability_rows P>
+    void row_losses(const T& truth, const P& prediction, std::span<double> out) const {
+        auto t = values_of(truth);
+        const auto rows = rows_of(prediction);
+        for (std::size_t i = 0; i < out.size(); ++i) {
+            double s = 0;
+            for (std::size_t k = 0; k < rows.cols; ++k) {
+                const double d = static_cast<double>(rows(i, k)) - (static_cast<std::size_t>(t[i]) == k ? 1.0 : 0.0);
+                s += d * d;
+            }
+            out[i] = s;
+        }
+    }
 };
 
+inline multiclass_brier_score multiclass_brier_score_accumulator::measure() const { return {}; }
+
+} // namespace measure
+
+inline measure::brier_score detail::brier_policy::measure() const { return {}; }
+
+namespace measure {
 } // namespace measure
 HELDOUT_NAMESPACE_END

@@ -79,8 +79,14 @@ inline void neumaier_add(double& sum, double& carry, double x) {
 } // namespace detail_calibration
 
 /// Running state of calibration_error and multiclass_calibration_error.
+struct calibration_error;
+struct multiclass_calibration_error;
+
 class calibration_error_accumulator {
 public:
+    /// The measure this state belongs to (binary form; its parameters included).
+    calibration_error measure() const;
+
     calibration_error_accumulator() = default;
     calibration_error_accumulator(std::size_t bins, bin_rule rule, calibration_variant variant,
                                   calibration_statistic statistic, bool multiclass)
@@ -128,8 +134,9 @@ public:
     }
 
     void merge(const calibration_error_accumulator& o) {
-        if (o.bins_ != bins_ || o.rule_ != rule_ || o.variant_ != variant_ || o.multiclass_ != multiclass_)
-            detail::fail(who(), "other", "accumulators with different bins, binning or variant do not merge");
+        if (o.bins_ != bins_ || o.rule_ != rule_ || o.variant_ != variant_ || o.statistic_ != statistic_ ||
+            o.multiclass_ != multiclass_)
+            detail::fail_state(who(), "other", "accumulators with different bins, binning or variant do not merge");
         count_ += o.count_;
         detail_calibration::neumaier_add(weight_, weight_carry_, o.weight_);
         weight_carry_ += o.weight_carry_;
@@ -349,16 +356,31 @@ private:
     mutable std::vector<double> edges_, scratch_;
 };
 
+/// Running state of multiclass_calibration_error: the top-label calibration state over
+/// class-probability rows.
+class multiclass_calibration_error_accumulator : public calibration_error_accumulator {
+public:
+    multiclass_calibration_error_accumulator() : multiclass_calibration_error_accumulator(15, bin_rule::equal_width, calibration_statistic::expected) {}
+    multiclass_calibration_error_accumulator(std::size_t bins, bin_rule rule, calibration_statistic statistic)
+        : calibration_error_accumulator(bins, rule, calibration_variant::top_label, statistic, true) {}
+    void merge(const multiclass_calibration_error_accumulator& o) { calibration_error_accumulator::merge(o); }
+    /// The measure this state belongs to (its parameters included).
+    multiclass_calibration_error measure() const;
+};
+
 /// Expected (or maximum) calibration error of binary probabilities P(y = 1).
 struct calibration_error {
     static constexpr direction better = direction::lower_is_better;
     static constexpr prediction_kind kind = prediction_kind::probability;
+    using capabilities = offers<cap::serialisable>;
+    static constexpr std::string_view key = "calibration_error";
 
     std::size_t bins = 15; // Guo et al. (2017) used 15
     bin_rule binning = bin_rule::equal_width;
     calibration_variant variant = calibration_variant::positive_class;
     calibration_statistic statistic = calibration_statistic::expected;
 
+    bool operator==(const calibration_error&) const = default;
     std::string name() const {
         return std::string(statistic == calibration_statistic::maximum ? "MCE" : "ECE") + " (" + std::to_string(bins) +
                (binning == bin_rule::equal_width ? " equal-width" : " equal-count") + " bins, " +
@@ -373,19 +395,31 @@ struct calibration_error {
 struct multiclass_calibration_error {
     static constexpr direction better = direction::lower_is_better;
     static constexpr prediction_kind kind = prediction_kind::class_probabilities;
+    using capabilities = offers<cap::serialisable>;
+    static constexpr std::string_view key = "multiclass_calibration_error";
 
     std::size_t bins = 15;
     bin_rule binning = bin_rule::equal_width;
     calibration_statistic statistic = calibration_statistic::expected;
 
+    bool operator==(const multiclass_calibration_error&) const = default;
     std::string name() const {
         return std::string(statistic == calibration_statistic::maximum ? "MCE" : "ECE") + " (" + std::to_string(bins) +
                (binning == bin_rule::equal_width ? " equal-width" : " equal-count") + " bins, top-label)";
     }
-    calibration_error_accumulator accumulator() const {
-        return calibration_error_accumulator(bins, binning, calibration_variant::top_label, statistic, true);
+    multiclass_calibration_error_accumulator accumulator() const {
+        return multiclass_calibration_error_accumulator(bins, binning, statistic);
     }
 };
+
+inline calibration_error calibration_error_accumulator::measure() const {
+    return {bins_, static_cast<bin_rule>(rule_), static_cast<calibration_variant>(variant_),
+            static_cast<calibration_statistic>(statistic_)};
+}
+inline multiclass_calibration_error multiclass_calibration_error_accumulator::measure() const {
+    const calibration_error b = calibration_error_accumulator::measure();
+    return {b.bins, b.binning, b.statistic};
+}
 
 } // namespace measure
 HELDOUT_NAMESPACE_END

@@ -94,7 +94,12 @@ public:
         ++count_;
     }
 
+    /// Combines two shards; both must have the same class count.
     void merge(const mismatch_accumulator& o) {
+        if (classes_ != o.classes_)
+            detail::fail_state(who_, "other",
+                               "cannot merge a state with classes = " + std::to_string(o.classes_) +
+                                   " into one with classes = " + std::to_string(classes_));
         mismatches_.merge(o.mismatches_);
         weight_.merge(o.weight_);
         count_ += o.count_;
@@ -121,6 +126,8 @@ public:
     double total_weight() const noexcept { return weight_.value(); }
     /// Total weight of the misclassified observations.
     double mismatch_weight() const noexcept { return mismatches_.value(); }
+    /// The measure this state belongs to (classification_error or accuracy, with its classes).
+    auto measure() const;
 
     // A tag first: accuracy and classification error have the same layout otherwise, and
     // bytes of one must not be read as the other.
@@ -173,27 +180,70 @@ private:
     std::uint64_t count_ = 0;
 };
 
+namespace detail_mismatch {
+inline std::string classes_text(std::size_t k) { return k == 0 ? std::string() : "classes " + std::to_string(k); }
+
+/// out[i] = 1 where the labels differ (Accuracy: where they agree), else 0.
+template <bool Accuracy, class T, class P>
+void row_values(const T& truth, const P& prediction, std::span<double> out) {
+    auto t = values_of(truth);
+    auto p = values_of(prediction);
+    for (std::size_t i = 0; i < out.size(); ++i)
+        out[i] = (detail::label_bits(t[i]) == detail::label_bits(p[i])) == Accuracy ? 1.0 : 0.0;
+}
+} // namespace detail_mismatch
+
 /// Misclassification rate: the (weighted) share of observations with y != f.
 struct classification_error {
     static constexpr direction better = direction::lower_is_better;
     static constexpr prediction_kind kind = prediction_kind::label;
+    using capabilities = offers<cap::row_losses, cap::serialisable>;
+    static constexpr std::string_view key = "classification_error";
     /// Number of classes k (labels must be < k); 0 = any non-negative label.
     std::size_t classes = 0;
 
-    std::string name() const { return "classification error"; }
+    bool operator==(const classification_error&) const = default;
+    std::string name() const {
+        return detail::with_parameters("classification error", detail_mismatch::classes_text(classes));
+    }
+    /// The name in error messages (without the class count).
+    std::string message_name() const { return "classification error"; }
     mismatch_accumulator<false> accumulator() const { return mismatch_accumulator<false>(classes); }
+    /// 1 for a misclassified row, 0 otherwise (rows that add() accepted).
+    template <label_range T, label_range P>
+    void row_losses(const T& truth, const P& prediction, std::span<double> out) const {
+        detail_mismatch::row_values<false>(truth, prediction, out);
+    }
 };
 
 /// Accuracy: the (weighted) share of observations with y == f.
 struct accuracy {
     static constexpr direction better = direction::higher_is_better;
     static constexpr prediction_kind kind = prediction_kind::label;
+    using capabilities = offers<cap::row_losses, cap::serialisable>;
+    static constexpr std::string_view key = "accuracy";
     /// Number of classes k (labels must be < k); 0 = any non-negative label.
     std::size_t classes = 0;
 
-    std::string name() const { return "accuracy"; }
+    bool operator==(const accuracy&) const = default;
+    std::string name() const { return detail::with_parameters("accuracy", detail_mismatch::classes_text(classes)); }
+    /// The name in error messages (without the class count).
+    std::string message_name() const { return "accuracy"; }
     mismatch_accumulator<true> accumulator() const { return mismatch_accumulator<true>(classes); }
+    /// 1 for a correctly classified row, 0 otherwise (rows that add() accepted).
+    template <label_range T, label_range P>
+    void row_losses(const T& truth, const P& prediction, std::span<double> out) const {
+        detail_mismatch::row_values<true>(truth, prediction, out);
+    }
 };
+
+template <bool Accuracy>
+auto mismatch_accumulator<Accuracy>::measure() const {
+    if constexpr (Accuracy)
+        return accuracy{classes_};
+    else
+        return classification_error{classes_};
+}
 
 } // namespace measure
 HELDOUT_NAMESPACE_END

@@ -32,11 +32,18 @@ enum class kappa_weighting { unweighted, linear, quadratic };
 struct cohen_kappa {
     static constexpr direction better = direction::higher_is_better;
     static constexpr prediction_kind kind = prediction_kind::label;
+    using capabilities = offers<cap::serialisable>;
+    static constexpr std::string_view key = "cohen_kappa";
     kappa_weighting weighting = kappa_weighting::unweighted;
     /// Number of classes k; 0 infers it from the labels.
     std::size_t classes = 0;
 
+    bool operator==(const cohen_kappa&) const = default;
     std::string name() const {
+        return detail::with_parameters(message_name(), classes == 0 ? "" : "classes " + std::to_string(classes));
+    }
+    /// The name in error messages (without the class count).
+    std::string message_name() const {
         switch (weighting) {
         case kappa_weighting::linear:
             return "linear-weighted kappa";
@@ -50,7 +57,7 @@ struct cohen_kappa {
     table_accumulator<cohen_kappa> accumulator() const { return table_accumulator<cohen_kappa>(*this); }
     /// The value on a given confusion table (rows = true class, columns = predicted).
     double from_table(const Eigen::MatrixXd& table) const {
-        const std::string who = "measure " + name();
+        const std::string who = "measure " + message_name();
         const detail::table_view v = detail::view_of_table(who, table);
         return from_view(v, detail::table_margins(v), who);
     }

@@ -872,7 +872,8 @@ private:
 };
 
 /// The accumulator of every table-based label measure M: a confusion_accumulator plus
-/// the measure, whose value is computed from the table when asked. M provides name(),
+/// the measure, whose value is computed from the table when asked. M provides name() and
+/// message_name() (its name in messages, without parameters such as costs),
 /// table_classes() (the fixed k, or 0; it checks the parameters), from_view(view, margins,
 /// who), visit_state over its parameters, and optionally check_usable(who) (refuses a
 /// measure that cannot score, e.g. a default cost_weighted_error without costs).
@@ -884,7 +885,7 @@ class table_accumulator {
 public:
     /// The accumulator of a default M (what deserialize() fills).
     table_accumulator() : table_accumulator(M{}) {}
-    explicit table_accumulator(const M& m) : m_(m), table_(m.table_classes(), "measure " + m.name()) {}
+    explicit table_accumulator(const M& m) : m_(m), table_(m.table_classes(), "measure " + m.message_name()) {}
 
     template <label_range T, label_range P>
     void add(const T& truth, const P& prediction) {
@@ -901,7 +902,13 @@ public:
         check_usable();
         table_.add_one(y, f, w);
     }
-    void merge(const table_accumulator& o) { table_.merge(o.table_); }
+    /// Combines two shards; both must be of the same measure (equal parameters).
+    void merge(const table_accumulator& o) {
+        if (!same_measure(m_, o.m_))
+            detail::fail_state(table_.who(), "other",
+                               "cannot merge a state of measure " + o.m_.name() + " into one of " + m_.name());
+        table_.merge(o.table_);
+    }
 
     /// The measure on the table so far; undefined_error when it is 0/0 (see the measure).
     /// Allocates nothing once a table of this k has been scored on this thread.
@@ -929,10 +936,10 @@ public:
         f(m_);
         table_.visit_state(f);
         // Bytes of a measure with the same layout (precision read as recall) are refused.
-        if (m_.table_classes() != table_.fixed_classes() || table_.who() != "measure " + m_.name())
+        if (m_.table_classes() != table_.fixed_classes() || table_.who() != "measure " + m_.message_name())
             detail::fail("heldout::deserialize", "bytes",
                          "the state is of " + table_.who() + " with " + std::to_string(table_.fixed_classes()) +
-                             " fixed classes, not of measure " + m_.name());
+                             " fixed classes, not of measure " + m_.message_name());
     }
     template <class F>
     void visit_state(F&& f) const {

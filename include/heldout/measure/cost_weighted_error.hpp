@@ -28,6 +28,8 @@ class cost_weighted_error {
 public:
     static constexpr direction better = direction::lower_is_better;
     static constexpr prediction_kind kind = prediction_kind::label;
+    using capabilities = offers<cap::serialisable>;
+    static constexpr std::string_view key = "cost_weighted_error";
 
     /// No costs: cannot score (add, value and from_table refuse it with an input_error); it
     /// exists so that deserialize() can build the accumulator and then read the costs.
@@ -35,11 +37,28 @@ public:
     /// costs(i, j) is the cost of predicting class j when the true class is i.
     explicit cost_weighted_error(Eigen::MatrixXd costs) : costs_(std::move(costs)) {
         if (costs_.size() == 0)
-            detail::fail("measure " + name(), "costs", "empty cost matrix");
+            detail::fail("measure " + message_name(), "costs", "empty cost matrix");
         check_costs();
     }
 
-    std::string name() const { return "cost-weighted error"; }
+    /// Same costs (same size, equal entries).
+    bool operator==(const cost_weighted_error& o) const {
+        return costs_.rows() == o.costs_.rows() && costs_.cols() == o.costs_.cols() && costs_ == o.costs_;
+    }
+    /// "cost-weighted error (costs [0 1; 5 0])": the costs are part of what is measured.
+    std::string name() const {
+        std::string c;
+        for (Eigen::Index i = 0; i < costs_.rows(); ++i) {
+            c += i == 0 ? "costs [" : "; ";
+            for (Eigen::Index j = 0; j < costs_.cols(); ++j)
+                c += (j == 0 ? "" : " ") + detail::number_text(costs_(i, j));
+        }
+        if (!c.empty())
+            c += "]";
+        return detail::with_parameters("cost-weighted error", c);
+    }
+    /// The name in error messages (without the costs).
+    std::string message_name() const { return "cost-weighted error"; }
     table_accumulator<cost_weighted_error> accumulator() const { return table_accumulator<cost_weighted_error>(*this); }
 
     /// The cost matrix (k x k; empty for a default-constructed measure).
@@ -47,7 +66,7 @@ public:
 
     /// The value on a given confusion table of the same size as the costs.
     double from_table(const Eigen::MatrixXd& table) const {
-        const std::string who = "measure " + name();
+        const std::string who = "measure " + message_name();
         check_usable(who);
         const detail::table_view v = detail::view_of_table(who, table);
         if (v.k != static_cast<std::size_t>(costs_.rows()))
@@ -92,7 +111,7 @@ private:
     void check_costs() const {
         if (costs_.size() == 0 && costs_.rows() == costs_.cols())
             return;
-        const std::string who = "measure " + name();
+        const std::string who = "measure " + message_name();
         if (costs_.rows() != costs_.cols())
             detail::fail(who, "costs",
                          "must be square (rows = true class, columns = predicted class), got " +

@@ -38,6 +38,9 @@
 #include <string_view>
 
 HELDOUT_NAMESPACE_BEGIN
+namespace measure {
+struct cross_entropy;
+}
 namespace detail {
 
 /// -log p_y for one binary row, in the form binary_pass wants.
@@ -97,6 +100,8 @@ struct cross_entropy_policy {
         return t;
     }
     double exact(double y, double p) const noexcept { return log_loss_term<double>::log_loss_exact(y, p, eps); }
+    bool operator==(const cross_entropy_policy&) const = default;
+    measure::cross_entropy measure() const;
     void validate(std::string_view who) const {
         if (!(eps >= 0 && eps < 0.5))
             fail(who, "eps", "clipping must lie in [0, 0.5), got " + number_text(eps));
@@ -122,14 +127,32 @@ using cross_entropy_accumulator = detail::binary_mean_accumulator<detail::cross_
 struct cross_entropy {
     static constexpr direction better = direction::lower_is_better;
     static constexpr prediction_kind kind = prediction_kind::probability;
+    using capabilities = offers<cap::row_losses, cap::serialisable>;
+    static constexpr std::string_view key = "cross_entropy";
 
     double eps = 0.0;
 
-    std::string name() const { return "cross-entropy"; }
+    bool operator==(const cross_entropy&) const = default;
+    /// "cross-entropy", or "cross-entropy (clipped at 1e-15)" when eps > 0.
+    std::string name() const {
+        return detail::with_parameters("cross-entropy", eps == 0 ? "" : "clipped at " + detail::number_text(eps));
+    }
+    /// -log of the probability of the observed class, clipped to [eps, 1 - eps] (rows that
+    /// add() accepted).
+    template <value_range T, real_range P>
+    void row_losses(const T& truth, const P& prediction, std::span<double> out) const {
+        auto t = values_of(truth);
+        auto p = values_of(prediction);
+        for (std::size_t i = 0; i < out.size(); ++i)
+            out[i] = detail::log_loss_term<double>::log_loss_exact(static_cast<double>(t[i]),
+                                                                    static_cast<double>(p[i]), eps);
+    }
     cross_entropy_accumulator accumulator() const {
         return cross_entropy_accumulator(detail::cross_entropy_policy{eps});
     }
 };
+
+struct multiclass_cross_entropy;
 
 /// Running state of multiclass_cross_entropy.
 class multiclass_cross_entropy_accumulator {
@@ -152,6 +175,10 @@ public:
         add_impl(truth, prediction, w.data(), true);
     }
     void merge(const multiclass_cross_entropy_accumulator& o) {
+        if (eps_ != o.eps_)
+            detail::fail_state(who(), "other",
+                               "cannot merge a state clipped at " + detail::number_text(o.eps_) +
+                                   " into one clipped at " + detail::number_text(eps_));
         loss_.merge(o.loss_);
         weight_.merge(o.weight_);
         infinite_weight_ += o.infinite_weight_;
@@ -173,6 +200,8 @@ public:
         count_ = 0;
     }
     std::uint64_t count() const noexcept { return count_; }
+    /// The measure this state belongs to (its clipping included).
+    multiclass_cross_entropy measure() const;
 
     template <class F>
     void visit_state(F&& f) {
@@ -232,12 +261,35 @@ private:
 struct multiclass_cross_entropy {
     static constexpr direction better = direction::lower_is_better;
     static constexpr prediction_kind kind = prediction_kind::class_probabilities;
+    using capabilities = offers<cap::row_losses, cap::serialisable>;
+    static constexpr std::string_view key = "multiclass_cross_entropy";
 
     double eps = 0.0;
 
-    std::string name() const { return "multiclass cross-entropy"; }
+    bool operator==(const multiclass_cross_entropy&) const = default;
+    std::string name() const {
+        return detail::with_parameters("multiclass cross-entropy",
+                                       eps == 0 ? "" : "clipped at " + detail::number_text(eps));
+    }
+    /// -log of the clipped probability of the observed class (rows that add() accepted).
+    template <label_range T, probability_rows P>
+    void row_losses(const T& truth, const P& prediction, std::span<double> out) const {
+        auto t = values_of(truth);
+        const auto rows = rows_of(prediction);
+        for (std::size_t i = 0; i < out.size(); ++i) {
+            const double p = static_cast<double>(rows(i, static_cast<std::size_t>(t[i])));
+            out[i] = -std::log(p < eps ? eps : (p > 1.0 - eps ? 1.0 - eps : p));
+        }
+    }
     multiclass_cross_entropy_accumulator accumulator() const { return multiclass_cross_entropy_accumulator(eps); }
 };
 
+inline multiclass_cross_entropy multiclass_cross_entropy_accumulator::measure() const { return {eps_}; }
+
+} // namespace measure
+
+inline measure::cross_entropy detail::cross_entropy_policy::measure() const { return {eps}; }
+
+namespace measure {
 } // namespace measure
 HELDOUT_NAMESPACE_END

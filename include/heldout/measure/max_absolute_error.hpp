@@ -22,8 +22,13 @@ HELDOUT_NAMESPACE_BEGIN
 namespace measure {
 
 /// Running state of max_absolute_error: the maximum so far and the row counts.
+struct max_absolute_error;
+
 class max_absolute_error_accumulator {
 public:
+    /// The measure this state belongs to.
+    max_absolute_error measure() const;
+
     /// Adds a batch of real truth and floating-point predictions.
     template <value_range T, real_range P>
     void add(const T& truth, const P& prediction) {
@@ -129,9 +134,13 @@ struct max_absolute_error {
     static constexpr direction better = direction::lower_is_better;
     static constexpr prediction_kind kind = prediction_kind::real;
 
+    using capabilities = offers<cap::serialisable>;
+    static constexpr std::string_view key = "max_absolute_error";
     std::string name() const { return "max absolute error"; }
     max_absolute_error_accumulator accumulator() const { return {}; }
 };
+
+inline max_absolute_error max_absolute_error_accumulator::measure() const { return {}; }
 
 } // namespace measure
 HELDOUT_NAMESPACE_END

@@ -28,14 +28,19 @@ namespace measure {
 struct mcc {
     static constexpr direction better = direction::higher_is_better;
     static constexpr prediction_kind kind = prediction_kind::label;
+    using capabilities = offers<cap::serialisable>;
+    static constexpr std::string_view key = "mcc";
     /// Number of classes k; 0 infers it from the labels (k = 2: the binary form).
     std::size_t classes = 0;
 
-    std::string name() const { return "MCC"; }
+    bool operator==(const mcc&) const = default;
+    std::string name() const { return detail::with_parameters("MCC", classes == 0 ? "" : "classes " + std::to_string(classes)); }
+    /// The name in error messages (without the class count).
+    std::string message_name() const { return "MCC"; }
     table_accumulator<mcc> accumulator() const { return table_accumulator<mcc>(*this); }
     /// The value on a given confusion table (rows = true class, columns = predicted).
     double from_table(const Eigen::MatrixXd& table) const {
-        const std::string who = "measure " + name();
+        const std::string who = "measure " + message_name();
         const detail::table_view v = detail::view_of_table(who, table);
         return from_view(v, detail::table_margins(v), who);
     }

@@ -43,22 +43,6 @@ template <pointwise_loss L>
 struct mean_loss;
 
 namespace detail_mean_loss {
-template <class L>
-std::string name_of() {
-    if constexpr (requires { L::measure_name; })
-        return std::string(L::measure_name);
-    else
-        return "mean " + std::string(L::name) + " loss";
-}
-
-template <class L>
-constexpr bool propagates() {
-    if constexpr (requires { L::propagates_non_finite; })
-        return L::propagates_non_finite;
-    else
-        return false;
-}
-
 /// The per-row term of mean_loss<L> for detail::pointwise_pass.
 template <class L>
 struct loss_term {
@@ -82,7 +66,7 @@ struct loss_term {
     HELDOUT_DETAIL_INLINE detail::same_width_uint<P> flag(Y y, P f) const noexcept {
         using U = detail::same_width_uint<P>;
         U r = 0;
-        if constexpr (!propagates<L>())
+        if constexpr (!loss_traits<L>::propagates_non_finite)
             r = detail::flag_as<U>(detail::non_finite_flag(y)) | detail::non_finite_flag(f);
         return r;
     }
@@ -97,9 +81,9 @@ struct loss_term {
     [[noreturn]] void report(std::string_view who, double y, double f, std::size_t i) const {
         std::string problem = "loss not finite at truth " + detail::number_text(y) + ", prediction " +
                               detail::number_text(f) + " (overflow, or outside the loss's domain";
-        if constexpr (requires { L::truth_domain; }) {
+        if constexpr (!loss_traits<L>::truth_domain().empty()) {
             problem += ": ";
-            problem += L::truth_domain;
+            problem += loss_traits<L>::truth_domain();
         }
         problem += ")";
         detail::fail_at(who, "prediction", problem, i);
@@ -140,7 +124,12 @@ public:
         ++count_;
     }
 
+    /// Combines two shards; both must be of the same measure (equal loss parameters).
     void merge(const mean_loss_accumulator& o) {
+        if (!same_measure(measure(), o.measure()))
+            detail::fail_state(who(), "other",
+                               "cannot merge " + o.measure().name() + " into " + measure().name() +
+                                   ": the loss parameters differ");
         loss_sum_.merge(o.loss_sum_);
         weight_sum_.merge(o.weight_sum_);
         count_ += o.count_;
@@ -164,20 +153,24 @@ public:
     std::uint64_t count() const noexcept { return count_; }
     double total_weight() const noexcept { return weight_sum_.value(); }
     const L& loss() const noexcept { return loss_; }
+    /// The measure this state belongs to (its parameters included).
+    mean_loss<L> measure() const { return mean_loss<L>{loss_}; }
 
     // A loss with parameters (Huber delta, pinball tau, ...) exposes them through its own
     // visit_state; they come first, so deserialised bytes restore them.
     template <class F>
     void visit_state(F&& f) {
-        if constexpr (requires(L & l) { l.visit_state(f); })
+        if constexpr (loss_traits<L>::has_parameters) {
             f(loss_);
+            loss_traits<L>::validate(loss_, who()); // parameters read from bytes are checked like given ones
+        }
         loss_sum_.visit_state(f);
         weight_sum_.visit_state(f);
         f(count_);
     }
     template <class F>
     void visit_state(F&& f) const {
-        if constexpr (requires(const L& l) { l.visit_state(f); })
+        if constexpr (loss_traits<L>::has_parameters)
             f(loss_);
         loss_sum_.visit_state(f);
         weight_sum_.visit_state(f);
@@ -193,12 +186,12 @@ public:
 
 private:
     static const std::string& who() {
-        static const std::string w = "measure " + detail_mean_loss::name_of<L>(); // once: no allocation per batch
+        static const std::string w = "measure " + loss_traits<L>::measure_name(); // once: no allocation per batch
         return w;
     }
     void validate() const {
-        if constexpr (requires(const L& l) { l.validate(std::string_view{}); })
-            loss_.validate(who());
+        static_assert(loss_traits<L>::check());
+        loss_traits<L>::validate(loss_, who());
     }
 
     template <class T, class P, class W>
@@ -222,17 +215,39 @@ private:
     std::uint64_t count_ = 0;
 };
 
+namespace detail_mean_loss {
+inline constexpr std::string_view key_prefix = "mean_loss/";
+}
+
 /// The mean of loss L over the observations (weighted mean when weights are given).
 template <pointwise_loss L>
 struct mean_loss {
     static constexpr direction better = direction::lower_is_better;
     static constexpr prediction_kind kind =
         loss_truth_v<L> == truth_kind::binary ? prediction_kind::score : prediction_kind::real;
+    using capabilities = offers<cap::row_losses, cap::serialisable>;
+    static constexpr std::string_view key = detail::joined_v<detail_mean_loss::key_prefix, L::name>;
 
     L loss{};
 
-    std::string name() const { return detail_mean_loss::name_of<L>(); }
+    bool operator==(const mean_loss& o) const {
+        if constexpr (loss_traits<L>::has_parameters)
+            return loss == o.loss;
+        else
+            return (void)o, true;
+    }
+    /// "MSE", "mean Huber loss (delta 2)": parameters show when they are not the default.
+    std::string name() const { return detail::with_parameters(loss_traits<L>::measure_name(), loss_traits<L>::parameters_text(loss)); }
     mean_loss_accumulator<L> accumulator() const { return mean_loss_accumulator<L>(loss); }
+
+    /// The loss of each row (rows that add() accepted): out[i] = L(truth[i], prediction[i]).
+    template <value_range T, real_range P>
+    void row_losses(const T& truth, const P& prediction, std::span<double> out) const {
+        auto t = values_of(truth);
+        auto p = values_of(prediction);
+        for (std::size_t i = 0; i < out.size(); ++i)
+            out[i] = loss.value(static_cast<double>(t[i]), static_cast<double>(p[i]));
+    }
 };
 
 /// Mean squared error: mean_loss<loss::squared> itself.

@@ -29,8 +29,13 @@ HELDOUT_NAMESPACE_BEGIN
 namespace measure {
 
 /// Running state of median_absolute_error: all absolute errors and their weights.
+struct median_absolute_error;
+
 class median_absolute_error_accumulator {
 public:
+    /// The measure this state belongs to.
+    median_absolute_error measure() const;
+
     template <value_range T, real_range P>
     void add(const T& truth, const P& prediction) {
         auto [t, p] = views(truth, prediction);
@@ -142,9 +147,13 @@ struct median_absolute_error {
     static constexpr direction better = direction::lower_is_better;
     static constexpr prediction_kind kind = prediction_kind::real;
 
+    using capabilities = offers<cap::serialisable>;
+    static constexpr std::string_view key = "median_absolute_error";
     std::string name() const { return "median absolute error"; }
     median_absolute_error_accumulator accumulator() const { return {}; }
 };
+
+inline median_absolute_error median_absolute_error_accumulator::measure() const { return {}; }
 
 } // namespace measure
 HELDOUT_NAMESPACE_END

@@ -38,8 +38,13 @@ enum class multiclass_auc_method : std::uint8_t {
 };
 
 /// Running state of multiclass_auc: the probability rows, labels and weights.
+struct multiclass_auc;
+
 class multiclass_auc_accumulator {
 public:
+    /// The measure this state belongs to (its method included).
+    multiclass_auc measure() const;
+
     multiclass_auc_accumulator() = default;
     explicit multiclass_auc_accumulator(multiclass_auc_method m) : method_(static_cast<std::uint8_t>(m)) {}
 
@@ -67,10 +72,10 @@ public:
         if (o.labels_.empty())
             return;
         if (method_ != o.method_)
-            detail::fail(who(), "other", "cannot merge accumulators of different methods");
+            detail::fail_state(who(), "other", "cannot merge accumulators of different methods");
         if (classes_ != 0 && classes_ != o.classes_)
-            detail::fail(who(), "other",
-                         "has " + std::to_string(o.classes_) + " classes, this one " + std::to_string(classes_));
+            detail::fail_state(who(), "other",
+                               "has " + std::to_string(o.classes_) + " classes, this one " + std::to_string(classes_));
         classes_ = o.classes_;
         // Decided before anything is appended: a fresh accumulator has no rows to tell us.
         const bool weighted = !weights_.empty() || !o.weights_.empty();
@@ -253,13 +258,20 @@ private:
 struct multiclass_auc {
     static constexpr direction better = direction::higher_is_better;
     static constexpr prediction_kind kind = prediction_kind::class_probabilities;
+    using capabilities = offers<cap::serialisable>;
+    static constexpr std::string_view key = "multiclass_auc";
     multiclass_auc_method method = multiclass_auc_method::hand_till;
+    bool operator==(const multiclass_auc&) const = default;
     std::string name() const {
         return method == multiclass_auc_method::hand_till ? "multiclass AUC (Hand & Till M)"
                                                           : "multiclass AUC (prevalence-weighted one-vs-rest)";
     }
     multiclass_auc_accumulator accumulator() const { return multiclass_auc_accumulator(method); }
 };
+
+inline multiclass_auc multiclass_auc_accumulator::measure() const {
+    return {static_cast<multiclass_auc_method>(method_)};
+}
 
 } // namespace measure
 HELDOUT_NAMESPACE_END

@@ -28,6 +28,8 @@
 HELDOUT_NAMESPACE_BEGIN
 namespace measure {
 
+struct partial_auc;
+
 namespace detail_pauc {
 
 inline void check_range(std::string_view who, double a, double b) {
@@ -80,6 +82,7 @@ struct eval {
         return (1 + (p - mn) / (mx - mn)) / 2;
     }
     bool operator==(const eval&) const = default;
+    measure::partial_auc measure() const;
     template <class F>
     void visit_state(F&& f) {
         f(fpr_low);
@@ -104,10 +107,13 @@ using partial_auc_accumulator = detail::grouped_accumulator<detail_pauc::eval>;
 struct partial_auc {
     static constexpr direction better = direction::higher_is_better;
     static constexpr prediction_kind kind = prediction_kind::score;
+    using capabilities = offers<cap::whole_set, cap::serialisable>;
+    static constexpr std::string_view key = "partial_auc";
     double fpr_low = 0;
     double fpr_high = 1;
     bool standardized = false;
 
+    bool operator==(const partial_auc&) const = default;
     std::string name() const {
         return std::string(standardized ? "standardized partial AUC" : "partial AUC") + " [" +
                detail::number_text(fpr_low) + ", " + detail::number_text(fpr_high) + "]";
@@ -119,4 +125,9 @@ struct partial_auc {
 };
 
 } // namespace measure
+
+inline measure::partial_auc measure::detail_pauc::eval::measure() const {
+    return {fpr_low, fpr_high, standardized != 0};
+}
+
 HELDOUT_NAMESPACE_END

@@ -173,6 +173,10 @@ inline std::string combined_name(const std::string& base, measure::class_combina
     }
     return base;
 }
+inline std::string combined_name(const std::string& base, measure::class_combination how, std::size_t positive,
+                                 std::size_t classes) {
+    return with_parameters(combined_name(base, how, positive), classes == 0 ? "" : "classes " + std::to_string(classes));
+}
 
 /// Checks the parameters shared by the per-class measures; returns the table's fixed k.
 inline std::size_t combined_classes(const std::string& who, measure::class_combination how, std::size_t positive,
@@ -200,6 +204,8 @@ namespace measure {
 struct precision {
     static constexpr direction better = direction::higher_is_better;
     static constexpr prediction_kind kind = prediction_kind::label;
+    using capabilities = offers<cap::serialisable>;
+    static constexpr std::string_view key = "precision";
     /// Which classes count (binary: labels 0/1 and class `positive`).
     class_combination combination = class_combination::binary;
     /// The class reported under binary and one_vs_rest.
@@ -207,16 +213,20 @@ struct precision {
     /// Number of classes k; 0 infers it from the labels (binary: always 2).
     std::size_t classes = 0;
 
-    std::string name() const { return detail::combined_name("precision", combination, positive); }
+    bool operator==(const precision&) const = default;
+    /// "precision (positive class 0, classes 2)": parameters that are not the default show.
+    std::string name() const { return detail::combined_name("precision", combination, positive, classes); }
+    /// The name in error messages (without the class count).
+    std::string message_name() const { return detail::combined_name("precision", combination, positive); }
     table_accumulator<precision> accumulator() const { return table_accumulator<precision>(*this); }
     /// The value on a given confusion table (rows = true class, columns = predicted).
     double from_table(const Eigen::MatrixXd& table) const {
-        const std::string who = "measure " + name();
+        const std::string who = "measure " + message_name();
         const detail::table_view v = detail::view_of_table(who, table);
         return from_view(v, detail::table_margins(v), who);
     }
     std::size_t table_classes() const {
-        return detail::combined_classes("measure " + name(), combination, positive, classes);
+        return detail::combined_classes("measure " + message_name(), combination, positive, classes);
     }
     /// The value from a table and its margins; `who` names the measure in messages.
     double from_view(const detail::table_view& v, const detail::table_margins& m, std::string_view who) const {
@@ -241,19 +251,25 @@ struct precision {
 struct recall {
     static constexpr direction better = direction::higher_is_better;
     static constexpr prediction_kind kind = prediction_kind::label;
+    using capabilities = offers<cap::serialisable>;
+    static constexpr std::string_view key = "recall";
     class_combination combination = class_combination::binary;
     std::size_t positive = 1;
     std::size_t classes = 0;
 
-    std::string name() const { return detail::combined_name("recall", combination, positive); }
+    bool operator==(const recall&) const = default;
+    /// "precision (positive class 0, classes 2)": parameters that are not the default show.
+    std::string name() const { return detail::combined_name("recall", combination, positive, classes); }
+    /// The name in error messages (without the class count).
+    std::string message_name() const { return detail::combined_name("recall", combination, positive); }
     table_accumulator<recall> accumulator() const { return table_accumulator<recall>(*this); }
     double from_table(const Eigen::MatrixXd& table) const {
-        const std::string who = "measure " + name();
+        const std::string who = "measure " + message_name();
         const detail::table_view v = detail::view_of_table(who, table);
         return from_view(v, detail::table_margins(v), who);
     }
     std::size_t table_classes() const {
-        return detail::combined_classes("measure " + name(), combination, positive, classes);
+        return detail::combined_classes("measure " + message_name(), combination, positive, classes);
     }
     /// The value from a table and its margins; `who` names the measure in messages.
     double from_view(const detail::table_view& v, const detail::table_margins& m, std::string_view who) const {
@@ -278,19 +294,25 @@ struct recall {
 struct specificity {
     static constexpr direction better = direction::higher_is_better;
     static constexpr prediction_kind kind = prediction_kind::label;
+    using capabilities = offers<cap::serialisable>;
+    static constexpr std::string_view key = "specificity";
     class_combination combination = class_combination::binary;
     std::size_t positive = 1;
     std::size_t classes = 0;
 
-    std::string name() const { return detail::combined_name("specificity", combination, positive); }
+    bool operator==(const specificity&) const = default;
+    /// "precision (positive class 0, classes 2)": parameters that are not the default show.
+    std::string name() const { return detail::combined_name("specificity", combination, positive, classes); }
+    /// The name in error messages (without the class count).
+    std::string message_name() const { return detail::combined_name("specificity", combination, positive); }
     table_accumulator<specificity> accumulator() const { return table_accumulator<specificity>(*this); }
     double from_table(const Eigen::MatrixXd& table) const {
-        const std::string who = "measure " + name();
+        const std::string who = "measure " + message_name();
         const detail::table_view v = detail::view_of_table(who, table);
         return from_view(v, detail::table_margins(v), who);
     }
     std::size_t table_classes() const {
-        return detail::combined_classes("measure " + name(), combination, positive, classes);
+        return detail::combined_classes("measure " + message_name(), combination, positive, classes);
     }
     /// The value from a table and its margins; `who` names the measure in messages.
     double from_view(const detail::table_view& v, const detail::table_margins& m, std::string_view who) const {
@@ -316,22 +338,29 @@ struct specificity {
 struct f_beta {
     static constexpr direction better = direction::higher_is_better;
     static constexpr prediction_kind kind = prediction_kind::label;
+    using capabilities = offers<cap::serialisable>;
+    static constexpr std::string_view key = "f_beta";
     double beta = 1.0;
     class_combination combination = class_combination::binary;
     std::size_t positive = 1;
     std::size_t classes = 0;
 
-    std::string name() const { return detail::combined_name("F" + detail::number_text(beta), combination, positive); }
+    bool operator==(const f_beta&) const = default;
+    std::string name() const {
+        return detail::combined_name("F" + detail::number_text(beta), combination, positive, classes);
+    }
+    /// The name in error messages (without the class count).
+    std::string message_name() const { return detail::combined_name("F" + detail::number_text(beta), combination, positive); }
     table_accumulator<f_beta> accumulator() const { return table_accumulator<f_beta>(*this); }
     double from_table(const Eigen::MatrixXd& table) const {
-        const std::string who = "measure " + name();
+        const std::string who = "measure " + message_name();
         const detail::table_view v = detail::view_of_table(who, table);
         return from_view(v, detail::table_margins(v), who);
     }
     std::size_t table_classes() const {
         if (!(std::isfinite(beta) && beta > 0))
-            detail::fail("measure " + name(), "beta", "must be finite and positive, got " + detail::number_text(beta));
-        return detail::combined_classes("measure " + name(), combination, positive, classes);
+            detail::fail("measure " + message_name(), "beta", "must be finite and positive, got " + detail::number_text(beta));
+        return detail::combined_classes("measure " + message_name(), combination, positive, classes);
     }
     /// The value from a table and its margins; `who` names the measure in messages.
     double from_view(const detail::table_view& v, const detail::table_margins& m, std::string_view who) const {

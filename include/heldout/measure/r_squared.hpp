@@ -28,8 +28,13 @@ HELDOUT_NAMESPACE_BEGIN
 namespace measure {
 
 /// Running state of r_squared.
+struct r_squared;
+
 class r_squared_accumulator {
 public:
+    /// The measure this state belongs to.
+    r_squared measure() const;
+
     template <value_range T, real_range P>
     void add(const T& truth, const P& prediction) {
         auto [t, p] = views(truth, prediction);
@@ -178,9 +183,13 @@ struct r_squared {
     static constexpr direction better = direction::higher_is_better;
     static constexpr prediction_kind kind = prediction_kind::real;
 
+    using capabilities = offers<cap::serialisable>;
+    static constexpr std::string_view key = "r_squared";
     std::string name() const { return "R-squared"; }
     r_squared_accumulator accumulator() const { return {}; }
 };
+
+inline r_squared r_squared_accumulator::measure() const { return {}; }
 
 } // namespace measure
 HELDOUT_NAMESPACE_END

@@ -15,22 +15,29 @@
 HELDOUT_NAMESPACE_BEGIN
 namespace measure {
 
+struct rmse;
+
 /// Running state of rmse: MSE's state, read through a square root.
 class rmse_accumulator : public mean_loss_accumulator<loss::squared> {
 public:
     using mean_loss_accumulator<loss::squared>::mean_loss_accumulator;
     void merge(const rmse_accumulator& o) { mean_loss_accumulator<loss::squared>::merge(o); }
     double value() const { return std::sqrt(mean_loss_accumulator<loss::squared>::value()); }
+    rmse measure() const;
 };
 
 /// Root mean squared error.
 struct rmse {
     static constexpr direction better = direction::lower_is_better;
     static constexpr prediction_kind kind = prediction_kind::real;
+    using capabilities = offers<cap::serialisable>;
+    static constexpr std::string_view key = "rmse";
 
     std::string name() const { return "RMSE"; }
     rmse_accumulator accumulator() const { return {}; }
 };
+
+inline rmse rmse_accumulator::measure() const { return {}; }
 
 } // namespace measure
 HELDOUT_NAMESPACE_END

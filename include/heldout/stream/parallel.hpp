@@ -37,23 +37,6 @@ struct parallel_options {
 
 namespace detail {
 
-/// The message of an error raised inside a chunk, with " at index i" moved to the row's
-/// index in the whole input (every heldout message puts the index last, in that form).
-inline std::string shift_index(std::string msg, std::size_t offset) {
-    constexpr std::string_view tag = " at index ";
-    const auto at = msg.rfind(tag);
-    if (at == std::string::npos)
-        return msg;
-    const std::size_t digits = at + tag.size();
-    std::size_t end = digits;
-    std::size_t i = 0;
-    while (end < msg.size() && msg[end] >= '0' && msg[end] <= '9')
-        i = i * 10 + static_cast<std::size_t>(msg[end++] - '0');
-    if (end == digits || end != msg.size())
-        return msg;
-    return msg.substr(0, digits) + std::to_string(i + offset);
-}
-
 /// Runs body(chunk_index) for every chunk on `threads` workers; rethrows the first
 /// exception (by chunk order) after all workers joined.
 template <class Body>
@@ -114,10 +97,8 @@ double evaluate_chunked(const M& m, const T& truth, const P& prediction, const W
                              w.subspan(first, count));
             else
                 parts[c].add(t.subspan(first, count), prediction_slice(prediction, first, count));
-        } catch (const undefined_error&) {
-            throw;
         } catch (const input_error& e) {
-            throw input_error(shift_index(e.what(), first));
+            rethrow_shifted(e, first); // the index of the whole input, not of the chunk
         }
     });
     // Chunk 0 is the start (no copy of it, no merge into an empty accumulator); the others
