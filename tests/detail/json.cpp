@@ -52,8 +52,8 @@ TEST_SUITE("detail/json") {
         CHECK(as_json("\xF4\x90\x80\x80") == "\"" + fffd + fffd + fffd + fffd + "\""); // above U+10FFFF
         CHECK(as_json("\xE2\x82") == "\"" + fffd + "\"");                              // truncated at the end
         CHECK(as_json("\xFF\xFE") == "\"" + fffd + fffd + "\"");                       // never in UTF-8
-        CHECK(as_json("\xE2\x82\"") == "\"" + fffd + "\\\"\"");                        // a subpart ends before the quote
-        CHECK(as_json("\xEF\xBF\xBF") == "\"\xEF\xBF\xBF\""); // U+FFFF is a valid JSON character
+        CHECK(as_json("\xE2\x82\"") == "\"" + fffd + "\\\"\""); // a subpart ends before the quote
+        CHECK(as_json("\xEF\xBF\xBF") == "\"\xEF\xBF\xBF\"");   // U+FFFF is a valid JSON character
     }
 
     TEST_CASE("random bytes: Python's strict UTF-8 decode and json.loads read back bytes.decode('utf-8', 'replace')") {
