@@ -12,7 +12,9 @@ tool reports with general-purpose functions, and compares to 1e-9 relative:
   paired t (Brier)     scipy.stats.ttest_rel on per-row squared errors
   corrected t          Nadeau & Bengio (2003): se = sqrt((1/J + n_test/n_train) s^2), scipy.stats.t
 AUC intervals and DeLong tests come from the library's DeLong code, checked in its own
-tests; here only their point values (AUC, AUC difference) are recomputed.
+tests; here only their point values (AUC, AUC difference) are recomputed. t-family intervals
+of the measures (all in [0, 1]) are clipped to [0, 1], with "clipped": true where that cut them.
+Wilson (error) and DeLong logit-scale (AUC) intervals lie inside [0, 1] by construction.
 """
 import csv
 import json
@@ -38,7 +40,10 @@ level = float(opt("--level", "0.95"))
 threshold = float(opt("--threshold", "0.5"))
 folds = opt("--folds")
 
-with open(path, newline="") as f:
+# Names with ill-formed UTF-8 are read as the tool must write them: each maximal subpart
+# replaced by U+FFFD (Python's "replace" handler does exactly that); json.load above already
+# decoded the output strictly, so the JSON itself is valid UTF-8 with escaped controls.
+with open(path, newline="", encoding="utf-8", errors="replace") as f:
     rows = list(csv.DictReader(f))
 models = {}  # name -> (y, s, split)
 if model_col:
@@ -54,6 +59,15 @@ else:
                      [r[split_col] if split_col else "all" for r in rows])
 
 failures = []
+
+
+def clipped_t(e, name, mean, half):
+    """The t interval mean -/+ half of a measure in [0, 1], clipped to [0, 1] as the tool does."""
+    lo, hi = mean - half, mean + half
+    close(name + " lower", e["lower"], max(0.0, lo), 1e-8)
+    close(name + " upper", e["upper"], min(1.0, hi), 1e-8)
+    if e["clipped"] != (lo < 0 or hi > 1):
+        failures.append("%s: clipped is %r for [%r, %r]" % (name, e["clipped"], lo, hi))
 
 
 def close(what, got, want, rel=1e-9):
@@ -79,7 +93,13 @@ def values(name, measure, y, s):
 est = {(m["name"], e["measure"]): e for m in out["models"] for e in m["estimates"]}
 cmp_ = {(c["first"], c["second"], c["measure"]): c for c in out["comparisons"]}
 names = list(models)
-assert [m["name"] for m in out["models"]] == names, "model order"
+assert [m["name"] for m in out["models"]] == names, "model order (and names read back): %r vs %r" % (
+    [m["name"] for m in out["models"]], names)
+for (name, measure), e in est.items():  # every measure reported lies in [0, 1], and so do intervals
+    assert isinstance(e["clipped"], bool), "clipped flag"
+    if e["lower"] is not None and not (0 <= e["lower"] <= e["value"] <= e["upper"] <= 1):
+        failures.append("%s %s: interval [%r, %r] around %r not inside [0, 1]" % (
+            name, measure, e["lower"], e["upper"], e["value"]))
 assert out["rows"] == len(next(iter(models.values()))[0])
 checked = 0
 if not split_col:
@@ -102,8 +122,7 @@ if not split_col:
             e = est[(name, "Brier score")]
             close(name + " Brier", e["value"], float(np.mean(b)))
             # scipy's t.ppf is accurate to ~1e-10 relative (see methods.md): a looser band here
-            close(name + " Brier lower", e["lower"], float(np.mean(b)) - tq * se, 1e-8)
-            close(name + " Brier upper", e["upper"], float(np.mean(b)) + tq * se, 1e-8)
+            clipped_t(e, name + " Brier", float(np.mean(b)), tq * se)
             checked += 3
         else:
             assert (name, "Brier score") not in est, "no Brier score for raw scores"
@@ -144,8 +163,7 @@ else:
             tq = stats.t.ppf(0.5 + level / 2, J - 1)
             e = est[(name, measure)]
             close(name + " " + measure, e["value"], float(np.mean(v)))
-            close(name + " " + measure + " lower", e["lower"], float(np.mean(v)) - tq * se, 1e-8)
-            close(name + " " + measure + " upper", e["upper"], float(np.mean(v)) + tq * se, 1e-8)
+            clipped_t(e, name + " " + measure, float(np.mean(v)), tq * se)
             checked += 3
         models[name] = (y, s, sp, per)
     for i, a in enumerate(names):

@@ -1,6 +1,6 @@
 // examples/tool/csv.hpp — the CSV reader of the `heldout` prediction-file tool.
 //
-//   heldout_tool::csv_table t = heldout_tool::parse_csv(text);    // or read_csv_file(path)
+//   heldout_tool::csv_table t = heldout_tool::parse_csv(text);    // or read_csv_file(path), "-" = stdin
 //   std::size_t y = t.column("failed");                          // csv_error if absent
 //   double s = t.number(row, t.column("score"));                 // std::from_chars
 //
@@ -17,12 +17,12 @@
 // the column's name — "line 7, column 3 ('score_b'): 'n/a' is not a number".
 #pragma once
 
+#include <cerrno>
 #include <charconv>
 #include <cmath>
 #include <cstddef>
-#include <fstream>
-#include <iterator>
-#include <sstream>
+#include <cstdio>
+#include <cstring>
 #include <stdexcept>
 #include <string>
 #include <string_view>
@@ -212,17 +212,39 @@ inline csv_table parse_csv(std::string_view text) {
     return t;
 }
 
-/// Reads and parses a file; std::runtime_error when it cannot be read, csv_error for content.
-inline csv_table read_csv_file(const std::string& path) {
-    std::ifstream in(path, std::ios::binary);
-    if (!in)
-        throw std::runtime_error("cannot open '" + path + "' for reading");
-    std::ostringstream buf;
-    buf << in.rdbuf();
-    if (in.bad())
-        throw std::runtime_error("reading '" + path + "' failed");
-    const std::string text = buf.str();
-    return parse_csv(text);
+/// A file that cannot be read or written (the tool's exit code 3), with the reason.
+class io_error : public std::runtime_error {
+public:
+    using std::runtime_error::runtime_error;
+};
+
+/// The whole content of a file, or of standard input for "-"; io_error naming the file and
+/// the system's reason when it cannot be opened or read (a directory, a missing file, a read
+/// error), so that no read failure passes for an empty or truncated file.
+inline std::string read_text(const std::string& path) {
+    const bool stdin_ = path == "-";
+    const std::string name = stdin_ ? std::string("standard input") : "'" + path + "'";
+    std::FILE* f = stdin_ ? stdin : std::fopen(path.c_str(), "rb");
+    if (!f)
+        throw io_error("cannot open " + name + " for reading: " + std::strerror(errno));
+    // fopen accepts a directory on POSIX; reading it then fails with EISDIR, handled below.
+    std::string text;
+    char buf[65536];
+    std::size_t got = 0;
+    errno = 0;
+    while ((got = std::fread(buf, 1, sizeof buf, f)) > 0)
+        text.append(buf, got);
+    const bool failed = std::ferror(f) != 0;
+    const int err = errno;
+    if (!stdin_)
+        std::fclose(f);
+    if (failed)
+        throw io_error("reading " + name + " failed: " + std::strerror(err != 0 ? err : EIO));
+    return text;
 }
+
+/// Reads and parses a file ("-": standard input); io_error when it cannot be read, csv_error
+/// for its content.
+inline csv_table read_csv_file(const std::string& path) { return parse_csv(read_text(path)); }
 
 } // namespace heldout_tool

@@ -87,4 +87,11 @@ TEST_SUITE("tool/csv") {
     TEST_CASE("a file that cannot be read is a runtime_error, not a csv_error") {
         CHECK_THROWS_AS(heldout_tool::read_csv_file("/nonexistent/dir/file.csv"), std::runtime_error);
     }
+    TEST_CASE("read_text: a directory, a missing file: io_error with the system's reason") {
+        CHECK_THROWS_WITH_AS(heldout_tool::read_text("/"), "reading '/' failed: Is a directory",
+                             heldout_tool::io_error);
+        CHECK_THROWS_WITH_AS(heldout_tool::read_text("/nonexistent/x.csv"),
+                             "cannot open '/nonexistent/x.csv' for reading: No such file or directory",
+                             heldout_tool::io_error);
+    }
 }

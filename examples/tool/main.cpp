@@ -13,6 +13,7 @@
 #include "csv.hpp"
 
 #include <heldout/compare/mcnemar.hpp>
+#include <heldout/detail/json.hpp> // json_quote: the library's JSON string escaping
 #include <heldout/estimate/binomial_interval.hpp>
 #include <heldout/estimate/corrected_t.hpp>
 #include <heldout/estimate/delong.hpp>
@@ -26,9 +27,12 @@
 #include <boost/math/distributions/students_t.hpp>
 
 #include <algorithm>
+#include <cerrno>
 #include <cmath>
 #include <cstdint>
 #include <cstdio>
+#include <cstdlib>
+#include <cstring>
 #include <filesystem>
 #include <iostream>
 #include <map>
@@ -41,9 +45,10 @@ namespace {
 
 // Exit codes (documented in --help and docs/tool.md).
 constexpr int exit_ok = 0;
-constexpr int exit_data = 1;  // the file's content: CSV syntax, missing column, bad cell, a class absent
-constexpr int exit_usage = 2; // the command line
-constexpr int exit_io = 3;    // a file that cannot be read or written
+constexpr int exit_data = 1;     // the file's content: CSV syntax, missing column, bad cell, a class absent
+constexpr int exit_usage = 2;    // the command line
+constexpr int exit_io = 3;       // a file (or standard input/output) that cannot be read or written
+constexpr int exit_internal = 4; // anything else: a bug (or no memory), never a result
 
 struct usage_error : std::runtime_error {
     using std::runtime_error::runtime_error;
@@ -51,6 +56,7 @@ struct usage_error : std::runtime_error {
 struct data_error : std::runtime_error {
     using std::runtime_error::runtime_error;
 };
+using heldout_tool::io_error;
 
 struct options {
     std::string file;
@@ -87,6 +93,7 @@ struct estimate_row {
     std::optional<double> lower, upper;
     std::string method;
     std::size_t splits = 1;
+    bool clipped = false; // a t-family interval cut to [0, 1] (see clip_to_unit)
 };
 
 /// One pairwise comparison row.
@@ -232,6 +239,22 @@ std::vector<std::string> measures_for(const model_data& m) {
     return {"AUC"};
 }
 
+/// A t-family interval (mean +- t se) of a measure bounded in [0, 1] (classification error,
+/// Brier score of probabilities, AUC) can reach outside [0, 1]; values there are impossible,
+/// so the interval is cut to [0, 1], and a note says so (with the uncut interval).
+void clip_to_unit(estimate_row& e, report& rep) {
+    if (!e.lower || !e.upper || (*e.lower >= 0 && *e.upper <= 1))
+        return;
+    const double lo = *e.lower, hi = *e.upper;
+    e.lower = std::max(0.0, lo);
+    e.upper = std::min(1.0, hi);
+    e.clipped = true;
+    rep.notes.push_back(e.model + ", " + e.measure + ": the " + e.method + " interval [" +
+                        heldout::report::number(lo, 4) + ", " + heldout::report::number(hi, 4) +
+                        "] reaches outside [0, 1], where the measure lies; clipped to [" +
+                        heldout::report::number(*e.lower, 4) + ", " + heldout::report::number(*e.upper, 4) + "]");
+}
+
 report one_test_set(const dataset& d, const options& o) {
     report rep;
     const std::size_t n = d.truth.size();
@@ -245,6 +268,7 @@ report one_test_set(const dataset& d, const options& o) {
             rep.estimates.push_back({m.name, "classification error", w.estimate, w.lower, w.upper, "Wilson score", 1});
             const auto b = heldout::t_interval(squared_errors(d.truth, m.score), o.level);
             rep.estimates.push_back({m.name, "Brier score", b.mean, b.lower, b.upper, "t on per-row losses", 1});
+            clip_to_unit(rep.estimates.back(), rep); // probabilities: the Brier score lies in [0, 1]
         }
         try {
             const auto a = heldout::delong_auc(d.truth, m.score, o.level);
@@ -360,7 +384,8 @@ report resampled(const dataset& d, const options& o) {
                 const auto c = heldout::corrected_resampled_t(defined, n_train, n_test, o.level);
                 rep.estimates.push_back({d.models[m].name, measure, c.mean, c.lower, c.upper,
                                          "corrected t (Nadeau-Bengio)", defined.size()});
-            } catch (const heldout::undefined_error&) { // every split gave the same value
+                clip_to_unit(rep.estimates.back(), rep); // error, Brier of probabilities and AUC lie in [0, 1]
+            } catch (const heldout::undefined_error&) {  // every split gave the same value
                 rep.estimates.push_back({d.models[m].name, measure, defined.front(), std::nullopt, std::nullopt,
                                          "constant over splits, no interval", defined.size()});
             }
@@ -402,7 +427,14 @@ std::vector<std::string> write_plots(const dataset& d, const options& o, const r
     std::error_code ec;
     fs::create_directories(o.plots, ec);
     if (ec)
-        throw std::runtime_error("cannot create the plot directory '" + o.plots + "': " + ec.message());
+        throw io_error("cannot create the plot directory '" + o.plots + "': " + ec.message());
+    auto save = [](const std::string& text, const std::string& path) {
+        try {
+            heldout::report::save(text, path);
+        } catch (const std::runtime_error& e) { // cannot open or write: the file system's answer
+            throw io_error(e.what());
+        }
+    };
     {
         std::vector<heldout::report::roc_series> roc;
         for (const auto& m : d.models)
@@ -410,8 +442,8 @@ std::vector<std::string> write_plots(const dataset& d, const options& o, const r
                 m.name + " (AUC " +
                     heldout::report::number(heldout::evaluate(heldout::measure::auc{}, d.truth, m.score), 3) + ")",
                 heldout::roc_points(d.truth, m.score)));
-        heldout::report::save(heldout::report::roc_plot(roc, "ROC curves", o.split.empty() ? "" : "all splits pooled"),
-                              (fs::path(o.plots) / "roc.svg").string());
+        save(heldout::report::roc_plot(roc, "ROC curves", o.split.empty() ? "" : "all splits pooled"),
+             (fs::path(o.plots) / "roc.svg").string());
         written.push_back("roc.svg");
     }
     std::vector<heldout::report::calibration_series> cal;
@@ -419,7 +451,7 @@ std::vector<std::string> write_plots(const dataset& d, const options& o, const r
         if (m.probability)
             cal.push_back({m.name, heldout::report::reliability_bins(d.truth, m.score, 10)});
     if (!cal.empty()) {
-        heldout::report::save(heldout::report::calibration_plot(cal), (fs::path(o.plots) / "calibration.svg").string());
+        save(heldout::report::calibration_plot(cal), (fs::path(o.plots) / "calibration.svg").string());
         written.push_back("calibration.svg");
     }
     // per-split values as strip plots, one per measure; paired when every split is defined
@@ -444,11 +476,11 @@ std::vector<std::string> write_plots(const dataset& d, const options& o, const r
         }
         if (groups.empty())
             continue;
-        heldout::report::save(heldout::report::strip_plot(groups, {.title = std::string(measure) + " per split",
-                                                                   .value_label = measure,
-                                                                   .subtitle = "split column '" + o.split + "'",
-                                                                   .paired = complete}),
-                              (fs::path(o.plots) / file).string());
+        save(heldout::report::strip_plot(groups, {.title = std::string(measure) + " per split",
+                                                  .value_label = measure,
+                                                  .subtitle = "split column '" + o.split + "'",
+                                                  .paired = complete}),
+             (fs::path(o.plots) / file).string());
         written.push_back(file);
     }
     return written;
@@ -465,8 +497,8 @@ std::string pad(std::string s, std::size_t w) {
     return s;
 }
 
-void print_text(const dataset& d, const options& o, const report& rep) {
-    std::cout << "heldout: " << o.file << ": " << d.truth.size() << " rows, " << d.models.size()
+void print_text(const dataset& d, const std::string& shown, const options& o, const report& rep) {
+    std::cout << "heldout: " << shown << ": " << d.truth.size() << " rows, " << d.models.size()
               << (d.models.size() == 1 ? " model" : " models") << ", truth '" << o.truth << "' (" << d.positives
               << " of class 1, " << d.negatives << " of class 0), ";
     if (o.split.empty())
@@ -514,36 +546,12 @@ void print_text(const dataset& d, const options& o, const report& rep) {
         std::cout << '\n';
 }
 
+/// A JSON string literal: control characters escaped, ill-formed UTF-8 replaced by U+FFFD
+/// (the library's writer, heldout/detail/json.hpp), so names of any bytes give valid JSON.
 std::string json_string(std::string_view s) {
-    std::string out = "\"";
-    for (char c : s) {
-        switch (c) {
-        case '"':
-            out += "\\\"";
-            break;
-        case '\\':
-            out += "\\\\";
-            break;
-        case '\n':
-            out += "\\n";
-            break;
-        case '\r':
-            out += "\\r";
-            break;
-        case '\t':
-            out += "\\t";
-            break;
-        default:
-            if (static_cast<unsigned char>(c) < 0x20) {
-                char buf[8];
-                std::snprintf(buf, sizeof buf, "\\u%04x", static_cast<unsigned>(static_cast<unsigned char>(c)));
-                out += buf;
-            } else {
-                out += c;
-            }
-        }
-    }
-    return out + "\"";
+    std::string out;
+    heldout::detail::json_quote(out, s);
+    return out;
 }
 // Full round-trip precision: the shortest text that reads back as the same double.
 std::string json_number(double x) { return heldout::report::number(x); }
@@ -568,7 +576,8 @@ void print_json(const dataset& d, const options& o, const report& rep, const std
             first = false;
             s += "{\"measure\": " + json_string(e.measure) + ", \"value\": " + json_number(e.value) +
                  ", \"lower\": " + json_number(e.lower) + ", \"upper\": " + json_number(e.upper) +
-                 ", \"method\": " + json_string(e.method) + ", \"splits\": " + std::to_string(e.splits) + "}";
+                 ", \"method\": " + json_string(e.method) + ", \"splits\": " + std::to_string(e.splits) +
+                 ", \"clipped\": " + (e.clipped ? "true" : "false") + "}";
         }
         s += "]}";
     }
@@ -593,6 +602,55 @@ void print_json(const dataset& d, const options& o, const report& rep, const std
     std::cout << s;
 }
 
+/// Refuses NaN and infinities before the range checks (which NaN passes: every comparison
+/// with it is false) with the same conversion CLI11 uses for doubles (strtod family); text
+/// that is not a number at all is left to CLI11's own conversion error.
+const CLI::Validator finite_number(
+    [](std::string& text) -> std::string {
+        const char* begin = text.c_str();
+        char* end = nullptr;
+        const double x = std::strtod(begin, &end);
+        if (end == begin)
+            return {};
+        return std::isfinite(x) ? std::string() : "Value " + text + " is not a finite number";
+    },
+    "FINITE");
+
+/// Writes what is buffered for standard output and checks that every write reached it (a
+/// full disk, a closed pipe, /dev/full): io_error otherwise, so a lost result never exits 0.
+void finish_stdout() {
+    errno = 0;
+    std::cout.flush();
+    if (!std::cout || std::fflush(stdout) != 0 || std::ferror(stdout))
+        throw io_error(std::string("writing standard output failed: ") + std::strerror(errno != 0 ? errno : EIO));
+}
+
+/// The command line's misuses that CLI11 does not see: a column named twice or for two roles,
+/// --model with several --score, --folds/--train-size without --split or missing with it.
+void check_usage(const options& o) {
+    std::vector<std::pair<std::string, std::string>> roles{{"--truth", o.truth}};
+    for (const auto& sc : o.scores)
+        roles.emplace_back("--score", sc);
+    if (!o.model.empty())
+        roles.emplace_back("--model", o.model);
+    if (!o.split.empty())
+        roles.emplace_back("--split", o.split);
+    for (std::size_t i = 0; i < roles.size(); ++i)
+        for (std::size_t j = i + 1; j < roles.size(); ++j)
+            if (roles[i].second == roles[j].second)
+                throw usage_error("column '" + heldout_tool::csv_table::printable(roles[j].second) + "' is given " +
+                                  (roles[i].first == roles[j].first
+                                       ? "twice to " + roles[i].first
+                                       : "to both " + roles[i].first + " and " + roles[j].first));
+    if (!o.model.empty() && o.scores.size() != 1)
+        throw usage_error("--model (long layout) takes exactly one --score column");
+    if (!o.split.empty() && o.folds == 0 && o.train_size == 0)
+        throw usage_error("--split needs --folds K or --train-size N: the corrected t accounts for splits "
+                          "that share training rows through n_test/n_train");
+    if (o.split.empty() && (o.folds != 0 || o.train_size != 0))
+        throw usage_error("--folds and --train-size go with --split");
+}
+
 } // namespace
 
 int main(int argc, char** argv) {
@@ -600,7 +658,7 @@ int main(int argc, char** argv) {
     CLI::App app{"heldout: estimates with confidence intervals, and valid pairwise comparisons, of models from a CSV "
                  "file of their predictions (truth 0/1, one score or probability column per model).",
                  "heldout"};
-    app.add_option("FILE", o.file, "CSV file (RFC 4180, header line first)")->required();
+    app.add_option("FILE", o.file, "CSV file (RFC 4180, header line first); - reads standard input")->required();
     app.add_option("--truth", o.truth, "column of the true class, 0 or 1")->required();
     app.add_option("--score", o.scores,
                    "column of a model's scores or probabilities of class 1; repeat for more models (the column name "
@@ -610,33 +668,41 @@ int main(int argc, char** argv) {
         ->multi_option_policy(CLI::MultiOptionPolicy::TakeAll);
     app.add_option("--model", o.model, "column naming the model of each row (long layout; one --score)");
     app.add_option("--split", o.split, "column naming the resampling split of each row (e.g. fold numbers)");
-    app.add_option("--folds", o.folds, "with --split: the splits come from K-fold CV (n_test/n_train = 1/(K-1))")
-        ->check(CLI::Range(2, 1000000));
-    app.add_option("--train-size", o.train_size, "with --split: rows each model was fitted on")
-        ->check(CLI::PositiveNumber);
+    auto* folds =
+        app.add_option("--folds", o.folds, "with --split: the splits come from K-fold CV (n_test/n_train = 1/(K-1))")
+            ->check(CLI::Range(2, 1000000));
+    auto* train_size = app.add_option("--train-size", o.train_size, "with --split: rows each model was fitted on")
+                           ->check(finite_number)
+                           ->check(CLI::PositiveNumber);
+    folds->excludes(train_size);
     app.add_option("--threshold", o.threshold, "decide class 1 when the probability is at least this (default 0.5)")
+        ->check(finite_number)
         ->check(CLI::Range(0.0, 1.0));
     app.add_option("--level", o.level, "confidence level of the intervals (default 0.95)")
+        ->check(finite_number)
         ->check(CLI::Range(0.5, 0.9999));
     app.add_flag("--json", o.json, "print JSON instead of tables (numbers at full round-trip precision)");
     app.add_option("--plots", o.plots, "write SVG plots (ROC, calibration, per-split values) into this directory");
     app.footer("Exit codes: 0 success; 1 a problem in the file's content (CSV syntax, a missing column, a cell that "
                "is not a number, truth other than 0/1, a class absent), with its line and column; 2 a usage "
-               "error; 3 a file that cannot be read or written.");
+               "error (an unknown option, a missing or non-finite value, a value out of range, a column given "
+               "twice); 3 a file, standard input or standard output that cannot be read or written; 4 an "
+               "internal error.");
     try {
         app.parse(argc, argv);
     } catch (const CLI::ParseError& e) {
-        const int code = app.exit(e);
+        const int code = app.exit(e); // --help prints to standard output: check that it got there
+        try {
+            finish_stdout();
+        } catch (const io_error& err) {
+            std::cerr << "heldout: " << err.what() << '\n';
+            return exit_io;
+        }
         return code == 0 ? exit_ok : exit_usage;
     }
+    const std::string shown = o.file == "-" ? "standard input" : o.file; // the file in messages
     try {
-        if (!o.model.empty() && o.scores.size() != 1)
-            throw usage_error("--model (long layout) takes exactly one --score column");
-        if (!o.split.empty() && o.folds == 0 && o.train_size == 0)
-            throw usage_error("--split needs --folds K or --train-size N: the corrected t accounts for splits "
-                              "that share training rows through n_test/n_train");
-        if (o.split.empty() && (o.folds != 0 || o.train_size != 0))
-            throw usage_error("--folds and --train-size go with --split");
+        check_usage(o);
         const heldout_tool::csv_table t = heldout_tool::read_csv_file(o.file);
         const dataset d = read(t, o);
         const report rep = o.split.empty() ? one_test_set(d, o) : resampled(d, o);
@@ -646,7 +712,7 @@ int main(int argc, char** argv) {
         if (o.json)
             print_json(d, o, rep, plots);
         else {
-            print_text(d, o, rep);
+            print_text(d, shown, o, rep);
             if (!plots.empty()) {
                 std::cout << "\nPlots written to " << o.plots << ":";
                 for (const auto& p : plots)
@@ -654,21 +720,25 @@ int main(int argc, char** argv) {
                 std::cout << '\n';
             }
         }
+        finish_stdout();
         return exit_ok;
     } catch (const usage_error& e) {
         std::cerr << "heldout: " << e.what() << "\nRun with --help for more information.\n";
         return exit_usage;
-    } catch (const heldout_tool::csv_error& e) {
-        std::cerr << "heldout: " << o.file << ": " << e.what() << '\n';
-        return exit_data;
-    } catch (const data_error& e) {
-        std::cerr << "heldout: " << o.file << ": " << e.what() << '\n';
-        return exit_data;
-    } catch (const heldout::input_error& e) { // undefined values on the whole file, bad values
-        std::cerr << "heldout: " << o.file << ": " << e.what() << '\n';
-        return exit_data;
-    } catch (const std::exception& e) { // files that cannot be read or written
+    } catch (const io_error& e) { // files, standard input or output that cannot be read or written
         std::cerr << "heldout: " << e.what() << '\n';
         return exit_io;
+    } catch (const heldout_tool::csv_error& e) {
+        std::cerr << "heldout: " << shown << ": " << e.what() << '\n';
+        return exit_data;
+    } catch (const data_error& e) {
+        std::cerr << "heldout: " << shown << ": " << e.what() << '\n';
+        return exit_data;
+    } catch (const heldout::input_error& e) { // undefined values on the whole file, bad values
+        std::cerr << "heldout: " << shown << ": " << e.what() << '\n';
+        return exit_data;
+    } catch (const std::exception& e) { // not a result: a bug, or no memory
+        std::cerr << "heldout: internal error: " << e.what() << '\n';
+        return exit_internal;
     }
 }

@@ -3,12 +3,33 @@ cmake_minimum_required(VERSION 3.21)
 # runs TOOL with ARGS ('|'-separated; {DATA} and {WORK} replaced), checks the exit code
 # (CODE), that stdout + stderr match EXPECT (a regex), and with JSON=ON that the output is
 # JSON whose numbers agree with scipy (check_json.py, run by PYTHON).
+# Optional: SETUP=ON runs make_cases.py {WORK} first (edge-case CSV files into WORK);
+# STDIN=file feeds the tool's standard input from a file; STDOUT=file sends its standard
+# output there instead of capturing it (e.g. /dev/full, a device that refuses every write).
 string(REPLACE "|" ";" args "${ARGS}")
 string(REPLACE "{DATA}" "${DATA}" args "${args}")
 string(REPLACE "{WORK}" "${WORK}" args "${args}")
 file(REMOVE_RECURSE ${WORK})
 file(MAKE_DIRECTORY ${WORK})
-execute_process(COMMAND ${TOOL} ${args} RESULT_VARIABLE rc OUTPUT_VARIABLE out ERROR_VARIABLE err)
+if(SETUP)
+    execute_process(COMMAND ${PYTHON} ${CMAKE_CURRENT_LIST_DIR}/make_cases.py ${WORK} RESULT_VARIABLE src
+                    ERROR_VARIABLE serr)
+    if(NOT src EQUAL 0)
+        message(FATAL_ERROR "make_cases.py failed:\n${serr}")
+    endif()
+endif()
+string(REPLACE "{DATA}" "${DATA}" STDIN "${STDIN}")
+string(REPLACE "{WORK}" "${WORK}" STDIN "${STDIN}")
+set(redirect)
+if(STDIN)
+    list(APPEND redirect INPUT_FILE ${STDIN})
+endif()
+if(STDOUT)
+    list(APPEND redirect OUTPUT_FILE ${STDOUT})
+else()
+    list(APPEND redirect OUTPUT_VARIABLE out)
+endif()
+execute_process(COMMAND ${TOOL} ${args} RESULT_VARIABLE rc ERROR_VARIABLE err ${redirect})
 if(NOT rc EQUAL CODE)
     message(FATAL_ERROR "exit code ${rc}, expected ${CODE}\nstdout:\n${out}\nstderr:\n${err}")
 endif()

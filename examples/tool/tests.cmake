@@ -1,5 +1,7 @@
-# End-to-end cases of the heldout tool: heldout_tool_test(NAME EXIT_CODE REGEX [JSON] ARGS...).
-# Exit codes: 0 success, 1 a problem in the file (named by line and column), 2 usage, 3 I/O.
+# End-to-end cases of the heldout tool:
+#   heldout_tool_test(NAME EXIT_CODE REGEX [JSON] [SETUP] [STDIN file] [STDOUT file] ARGS...)
+# Exit codes: 0 success, 1 a problem in the file (named by line and column), 2 usage, 3 I/O,
+# 4 internal error (no case: it means a bug).
 
 # one test set, wide layout: tables, then JSON checked against scipy, then plots
 heldout_tool_test(wide_tables 0 "Estimates.*logistic +classification error.*Wilson score.*DeLong paired"
@@ -42,5 +44,63 @@ heldout_tool_test(split_needs_folds 2 "--split needs --folds K or --train-size N
                   --score logistic --split fold)
 heldout_tool_test(bad_level 2 "--level" {DATA}/wide.csv --truth failed --score logistic --level 2)
 heldout_tool_test(help 0 "Exit codes: 0 success; 1 a problem in the file" --help)
-heldout_tool_test(no_file 3 "cannot open '.*nonexistent.csv' for reading" {DATA}/nonexistent.csv --truth failed
+heldout_tool_test(unknown_option 2 "argument was not expected: --bogus" {DATA}/wide.csv --truth failed
+                  --score logistic --bogus)
+heldout_tool_test(missing_value 2 "--score: 1 required TEXT missing" {DATA}/wide.csv --truth failed --score)
+heldout_tool_test(truth_twice 2 "--truth: At Most 1 required but received 2" {DATA}/wide.csv --truth failed
+                  --truth failed --score logistic)
+# NaN passes every range check (all comparisons with it are false): refused before them
+heldout_tool_test(nan_train_size 2 "--train-size: Value nan is not a finite number" {DATA}/resampled.csv
+                  --truth failed --score logistic --split fold --train-size nan)
+heldout_tool_test(inf_train_size 2 "--train-size: Value inf is not a finite number" {DATA}/resampled.csv
+                  --truth failed --score logistic --split fold --train-size inf)
+heldout_tool_test(huge_train_size 2 "--train-size: Value 1e999 is not a finite number" {DATA}/resampled.csv
+                  --truth failed --score logistic --split fold --train-size 1e999)
+heldout_tool_test(nan_threshold 2 "--threshold: Value nan is not a finite number" {DATA}/wide.csv --truth failed
+                  --score logistic --threshold nan)
+heldout_tool_test(nan_level 2 "--level: Value NaN is not a finite number" {DATA}/wide.csv --truth failed
+                  --score logistic --level NaN)
+heldout_tool_test(text_threshold 2 "--threshold: Value abc not in range" {DATA}/wide.csv --truth failed
+                  --score logistic --threshold abc)
+heldout_tool_test(score_twice 2 "column 'logistic' is given twice to --score" {DATA}/wide.csv --truth failed
+                  --score logistic --score knn --score logistic)
+heldout_tool_test(truth_as_score 2 "column 'failed' is given to both --truth and --score" {DATA}/wide.csv
+                  --truth failed --score failed)
+heldout_tool_test(folds_and_train_size 2 "--folds excludes --train-size" {DATA}/resampled.csv --truth failed
+                  --score logistic --split fold --folds 10 --train-size 270)
+heldout_tool_test(folds_without_split 2 "--folds and --train-size go with --split" {DATA}/wide.csv --truth failed
+                  --score logistic --folds 10)
+heldout_tool_test(no_file 3 "cannot open '.*nonexistent.csv' for reading: No such file or directory"
+                  {DATA}/nonexistent.csv --truth failed --score logistic)
+heldout_tool_test(directory_as_file 3 "reading '.*data' failed: Is a directory" {DATA} --truth failed
                   --score logistic)
+heldout_tool_test(plots_not_a_directory 3 "cannot create the plot directory '.*wide.csv/plots'" {DATA}/wide.csv
+                  --truth failed --score logistic --plots {DATA}/wide.csv/plots)
+# a write that fails (/dev/full refuses every write): exit 3, never 0 with a lost result
+heldout_tool_test(stdout_full 3 "writing standard output failed: No space left on device" STDOUT /dev/full
+                  {DATA}/wide.csv --truth failed --score logistic)
+heldout_tool_test(stdout_full_json 3 "writing standard output failed" STDOUT /dev/full {DATA}/wide.csv
+                  --truth failed --score logistic --json)
+heldout_tool_test(help_stdout_full 3 "writing standard output failed" STDOUT /dev/full --help)
+# "-" reads standard input
+heldout_tool_test(stdin 0 "heldout: standard input: 300 rows, 2 models.*logistic vs knn" STDIN {DATA}/wide.csv
+                  - --truth failed --score logistic --score knn)
+heldout_tool_test(stdin_empty 1 "standard input: line 1: the file is empty" STDIN /dev/null - --truth failed
+                  --score logistic)
+
+# names with control characters, quotes and ill-formed UTF-8: valid JSON (check_json.py reads it
+# back with a strict UTF-8 decode and compares the names with Python's U+FFFD replacement) and
+# well-formed SVG (run_tool.cmake parses every plot with xml.etree)
+heldout_tool_test(odd_names_json 0 "\"name\": \"ctl.u0001.u001f.end\", " JSON SETUP {WORK}/odd_names.csv --truth failed
+                  --score p --model model --plots {WORK}/plots)
+heldout_tool_test(odd_names_plots 0 "Plots written to.*roc.svg calibration.svg" SETUP {WORK}/odd_names.csv
+                  --truth failed --score p --model model --plots {WORK}/plots)
+# t intervals of measures in [0, 1] are clipped to it, with a note (the JSON check recomputes them)
+heldout_tool_test(clip_resampled 0 "good, classification error: the corrected t \\(Nadeau-Bengio\\) interval \\[-0[.][0-9]+, 0[.][0-9]+\\] reaches outside \\[0, 1\\], where the measure lies; clipped to \\[0[.]0000, 0[.][0-9]+\\]"
+                  SETUP {WORK}/low_error.csv --truth failed --score good --split fold --folds 10)
+heldout_tool_test(clip_resampled_json 0 "\"clipped\": true" JSON SETUP {WORK}/low_error.csv --truth failed
+                  --score good --split fold --folds 10)
+heldout_tool_test(clip_brier 0 "good +Brier score +0[.]0250 +\\[0[.]0000, 0[.]0756\\].*Brier score: the t on per-row losses interval \\[-0[.]0256, 0[.]0756\\]"
+                  SETUP {WORK}/one_error.csv --truth failed --score good)
+heldout_tool_test(clip_brier_json 0 "\"clipped\": true" JSON SETUP {WORK}/one_error.csv --truth failed
+                  --score good)

@@ -110,4 +110,22 @@ TEST_SUITE("plan/bootstrap") {
             CHECK(std::string(e.what()) == "heldout::bootstrap: argument 'n': the bootstrap needs at least 2 rows");
         }
     }
+    TEST_CASE("refusals; a replicate that draws every row is kept with an empty out-of-bag set") {
+        try {
+            heldout::bootstrap{}.splits(heldout::groups(std::vector<int>{3, 3, 3}));
+            FAIL("no error");
+        } catch (const heldout::input_error& e) {
+            CHECK(std::string(e.what()) ==
+                  "heldout::bootstrap: argument 'groups': the grouped bootstrap needs at least 2 groups");
+        }
+        // Two rows: each replicate draws both with probability 1/2. Not an error: the
+        // out-of-bag set is empty and callers (the aggregator) skip it; train is never empty.
+        std::size_t empty_oob = 0;
+        for (const heldout::split& s : heldout::bootstrap{.replicates = 40, .seed = 3}.splits(2)) {
+            CHECK(s.train.size() == 2);
+            empty_oob += s.test.empty();
+        }
+        CHECK(empty_oob > 0);
+        CHECK(empty_oob < 40);
+    }
 }

@@ -94,4 +94,42 @@ TEST_SUITE("plan/nested") {
             CHECK(total == 10);
         }
     }
+    TEST_CASE("an inner plan that cannot be built inside an outer training set is refused, naming the split") {
+        // Outer walk-forward on 11 rows: origins 3, 6, 9, training [0, 3), [0, 6), [0, 9). A
+        // 4-fold inner plan cannot split the first training set (3 rows); it can the others.
+        auto r = heldout::nested{heldout::walk_forward{.initial = 3, .horizon = 2, .step = 3},
+                                 heldout::kfold{.folds = 4, .seed = 1}}
+                     .splits(11);
+        REQUIRE(r.size() == 3);
+        std::string message = "no error";
+        try {
+            r.inner(0);
+        } catch (const heldout::input_error& e) {
+            message = e.what();
+        }
+        CHECK(message == "heldout::nested: argument 'inner': cannot be built inside outer split 0 (repeat 0, fold 0), "
+                         "which trains on 3 rows: heldout::kfold: argument 'folds': 4 folds exceed the 3 rows");
+        CHECK(r.inner(1).size() == 4);
+        for (const heldout::split& s : r.inner(2)) {
+            CHECK(!s.train.empty());
+            CHECK(!s.test.empty());
+        }
+        // Strata passed down: the stratified outer 2-fold splits the 4 rows of class 1 two and
+        // two, so each outer training set holds 2 of them, fewer than the 3 inner folds.
+        const std::vector<int> y{0, 0, 0, 0, 0, 0, 0, 0, 1, 1, 1, 1};
+        auto st = heldout::nested{heldout::kfold{.folds = 2, .seed = 4}, heldout::kfold{.folds = 3, .seed = 5}}.splits(
+            heldout::strata(y));
+        for (std::size_t i = 0; i < st.size(); ++i) {
+            std::string m = "no error";
+            try {
+                st.inner(i);
+            } catch (const heldout::input_error& e) {
+                m = e.what();
+            }
+            CHECK(m.rfind("heldout::nested: argument 'inner': cannot be built inside outer split " + std::to_string(i),
+                          0) == 0);
+            CHECK(m.find("heldout::kfold: argument 'strata': stratum 1 (label 1) has 2 rows, fewer than the 3 folds") !=
+                  std::string::npos);
+        }
+    }
 }

@@ -54,4 +54,24 @@ TEST_SUITE("plan/subsampling") {
             CHECK(std::string(e.what()) == "heldout::subsampling: argument 'repeats': must be at least 1");
         }
     }
+    TEST_CASE("a test size of 0 or n is refused, naming the member") {
+        auto message = [](auto&& f) -> std::string {
+            try {
+                f();
+            } catch (const heldout::input_error& e) {
+                return e.what();
+            }
+            return "no error";
+        };
+        CHECK(message([] { heldout::subsampling{.repeats = 3, .test_fraction = 0}.splits(10); }) ==
+              "heldout::subsampling: argument 'test_fraction': must lie in (0, 1), got 0");
+        CHECK(message([] { heldout::subsampling{.repeats = 3, .test_fraction = 0.04}.splits(10); }) ==
+              "heldout::subsampling: argument 'test_fraction': 0.040000000000000001 of 10 rows rounds to no test rows");
+        CHECK(message([] { heldout::subsampling{.repeats = 3, .test_count = 12}.splits(10); }) ==
+              "heldout::subsampling: argument 'test_count': 12 test rows leave no training rows out of 10");
+        const std::vector<int> g{1, 1, 1, 1, 1, 1, 1, 1, 2, 3};
+        CHECK(message([&] { heldout::subsampling{.repeats = 3, .test_count = 3}.splits(heldout::groups(g)); }) ==
+              "heldout::subsampling: argument 'groups': group 0 (id 1) has 8 rows: with 3 test rows out of 10 a draw "
+              "could leave no training rows");
+    }
 }

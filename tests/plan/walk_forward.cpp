@@ -103,4 +103,11 @@ TEST_SUITE("plan/walk_forward") {
         CHECK(message_of([&] { w.splits(10); }) ==
               "heldout::walk_forward: argument 'gap': negative (wrapped to unsigned: 18446744073709551615)");
     }
+    TEST_CASE("a gap that leaves no test row is named as the gap") {
+        // initial 8 + horizon 1 fits in 10 rows; a gap of 2 pushes the only test row past the end.
+        CHECK(message_of([] { heldout::walk_forward{.initial = 8, .horizon = 1, .gap = 2}.splits(10); }) ==
+              "heldout::walk_forward: argument 'gap': leaves no test row: initial 8 + gap 2 + horizon 1 exceeds the "
+              "10 rows");
+        CHECK(heldout::walk_forward{.initial = 8, .horizon = 1, .gap = 1}.splits(10).size() == 1); // row 9
+    }
 }

@@ -46,6 +46,14 @@ TEST_SUITE("report/svg") {
         CHECK(!xml_problem("<a></a><b/>").empty());          // two roots
         CHECK(!xml_problem("<a>\x01</a>").empty());          // control character
         CHECK(!xml_problem("<a>").empty());                  // unclosed
+        CHECK(xml_problem("<a>Gr\xC3\xB6\xC3\x9F\xE2\x82\xAC\xF0\x9F\x98\x80</a>")
+                  .empty());                                    // U+00F6 U+00DF U+20AC U+1F600
+        CHECK(!xml_problem("<a>\xFF</a>").empty());             // byte that never occurs in UTF-8
+        CHECK(!xml_problem("<a>\xC3</a>").empty());             // truncated sequence
+        CHECK(!xml_problem("<a>\xC0\x80</a>").empty());         // overlong U+0000
+        CHECK(!xml_problem("<a>\xED\xA0\x80</a>").empty());     // surrogate U+D800
+        CHECK(!xml_problem("<a>\xF4\x90\x80\x80</a>").empty()); // above U+10FFFF
+        CHECK(!xml_problem("<a>\xEF\xBF\xBF</a>").empty());     // U+FFFF, not an XML character
     }
 
     TEST_CASE("numbers: shortest round trip, fixed decimals, no negative zero, refusals") {
@@ -91,6 +99,41 @@ TEST_SUITE("report/svg") {
         CHECK(s.find("<script>") == std::string::npos);
         CHECK(s.find("<evil") == std::string::npos);
         CHECK(s.find("&lt;script&gt;&amp;&quot;&apos;") != std::string::npos);
+    }
+
+    TEST_CASE("escaping: every control character and ill-formed UTF-8 give well-formed XML") {
+        const std::string fffd = "\xEF\xBF\xBD"; // U+FFFD
+        for (int c = 1; c < 0x20; ++c) {
+            const std::string in(1, static_cast<char>(c));
+            const bool allowed = c == '\t' || c == '\n' || c == '\r'; // the XML 1.0 Char production
+            CHECK(xml_escape(in) == (allowed ? in : fffd));
+        }
+        CHECK(xml_escape(std::string("a\0b", 3)) == "a" + fffd + "b");
+        // Substitution of maximal subparts: Unicode 15.0 Section 3.9, Table 3-8 (example from memory;
+        // CPython's bytes.decode("utf-8", "replace") gives the same ten characters, run when this test
+        // was written): 61 F1 80 80 E1 80 C2 62 80 63 80 BF 64 -> a FFFD FFFD FFFD b FFFD c FFFD FFFD d.
+        CHECK(xml_escape("\x61\xF1\x80\x80\xE1\x80\xC2\x62\x80\x63\x80\xBF\x64") ==
+              "a" + fffd + fffd + fffd + "b" + fffd + "c" + fffd + fffd + "d");
+        CHECK(xml_escape("\xC0\x80") == fffd + fffd);                        // overlong: C0 never starts a sequence
+        CHECK(xml_escape("\xED\xA0\x80") == fffd + fffd + fffd);             // surrogate U+D800
+        CHECK(xml_escape("\xF4\x90\x80\x80") == fffd + fffd + fffd + fffd);  // above U+10FFFF
+        CHECK(xml_escape("x\xE2\x82") == "x" + fffd);                        // truncated at the end
+        CHECK(xml_escape("\xEF\xBF\xBE|\xEF\xBF\xBF") == fffd + "|" + fffd); // U+FFFE, U+FFFF: not XML characters
+        CHECK(xml_escape("\xF0\x9F\x98\x80 \xE2\x82\xAC") == "\xF0\x9F\x98\x80 \xE2\x82\xAC"); // U+1F600, U+20AC kept
+        // Random bytes in a title, a text and a legend entry: the document stays well-formed.
+        std::mt19937_64 gen(5);
+        for (int trial = 0; trial < 300; ++trial) {
+            std::string name(1 + gen() % 12, ' ');
+            for (auto& ch : name)
+                ch = static_cast<char>(gen() % 256);
+            svg doc(100, 50);
+            doc.text(10, 20, name).title(name);
+            CHECK(xml_problem(doc.str()).empty());
+            figure fig({.title = name, .x = {.label = name}, .y = {.label = name}});
+            fig.line(name, std::vector<double>{0, 1}, std::vector<double>{0, 1});
+            const std::string f = fig.str();
+            CHECK_MESSAGE(xml_problem(f).empty(), xml_problem(f));
+        }
     }
 
     TEST_CASE("nice ticks: worked examples") {

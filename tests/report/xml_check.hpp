@@ -2,7 +2,7 @@
 // what the SVG writer must get right, not all of XML): one root element, properly nested
 // and closed tags, quoted attributes without '<' and without repeats, only the five
 // predefined entities or character references, no raw '<' or '&' in text, no control
-// characters, comments and one optional prolog.
+// characters, well-formed UTF-8 without U+FFFE/U+FFFF, comments and one optional prolog.
 #pragma once
 
 #include <cctype>
@@ -22,6 +22,8 @@ public:
         for (unsigned char c : s_)
             if (c < 0x20 && c != '\t' && c != '\n' && c != '\r')
                 return "control character in document";
+        if (auto e = utf8_problem(); !e.empty())
+            return e;
         if (s_.substr(0, 5) == "<?xml") {
             auto e = s_.find("?>");
             if (e == std::string_view::npos)
@@ -43,6 +45,33 @@ public:
     const std::vector<std::string>& elements() const { return names_; }
 
 private:
+    /// The document is UTF-8 (the writer declares it): every sequence decodes to a code point
+    /// in the shortest form, not a surrogate, at most U+10FFFF, and not U+FFFE/U+FFFF (not XML
+    /// 1.0 characters). Decoded by lead-byte length and range checks on the code point (the
+    /// definition of UTF-8 in RFC 3629 Section 3), not by the writer's table.
+    std::string utf8_problem() const {
+        for (std::size_t i = 0; i < s_.size();) {
+            const auto b0 = static_cast<unsigned char>(s_[i]);
+            std::size_t len = b0 < 0x80 ? 1 : (b0 >> 5) == 6 ? 2 : (b0 >> 4) == 14 ? 3 : (b0 >> 3) == 30 ? 4 : 0;
+            if (len == 0 || i + len > s_.size())
+                return "ill-formed UTF-8 at offset " + std::to_string(i);
+            unsigned long cp = len == 1 ? b0 : b0 & (0x7Fu >> len);
+            for (std::size_t j = 1; j < len; ++j) {
+                const auto c = static_cast<unsigned char>(s_[i + j]);
+                if ((c >> 6) != 2)
+                    return "ill-formed UTF-8 at offset " + std::to_string(i);
+                cp = (cp << 6) | (c & 0x3Fu);
+            }
+            const unsigned long shortest[] = {0, 0, 0x80, 0x800, 0x10000};
+            if (cp < shortest[len] || (cp >= 0xD800 && cp <= 0xDFFF) || cp > 0x10FFFF)
+                return "ill-formed UTF-8 at offset " + std::to_string(i);
+            if (cp == 0xFFFE || cp == 0xFFFF)
+                return "U+FFFE or U+FFFF (not an XML character) at offset " + std::to_string(i);
+            i += len;
+        }
+        return {};
+    }
+
     bool peek(char c) const { return i_ < s_.size() && s_[i_] == c; }
     std::string err(std::string_view what) const { return std::string(what) + " at offset " + std::to_string(i_); }
     void spaces() {

@@ -5,6 +5,7 @@
 // (std::to_chars without a precision), so a JSON consumer recovers every bit. JSON has no
 // NaN or infinity: a non-finite number is written as null, and callers decide beforehand
 // whether that can happen (heldout's estimates hold finite numbers or absent values).
+// Strings are written as valid JSON whatever their bytes (see json_quote).
 #pragma once
 
 #include <heldout/core/config.hpp>
@@ -31,11 +32,65 @@ inline std::string shortest_text(double x) {
     return std::string(buf, r.ptr);
 }
 
-/// Appends s to out as a JSON string literal (quotes and escapes included).
+/// The UTF-8 sequence at s[i]: its length, and whether it is well formed (Unicode 15.0,
+/// Section 3.9, Table 3-7: no overlong forms, no surrogates, nothing above U+10FFFF). An
+/// ill-formed one has the length of its maximal subpart (at least 1 byte), which a writer
+/// replaces by one U+FFFD ("substitution of maximal subparts", Unicode 15.0 Section 3.9).
+/// Hand-written because the standard library has no UTF-8 validator (codecvt is deprecated)
+/// and the replacement policy must be this exact one for reproducible output.
+struct utf8_sequence {
+    std::size_t length = 1;
+    bool valid = true;
+};
+inline utf8_sequence utf8_at(std::string_view s, std::size_t i) noexcept {
+    const auto b = [&](std::size_t j) { return static_cast<unsigned char>(s[j]); };
+    const unsigned char b0 = b(i);
+    if (b0 < 0x80)
+        return {1, true};
+    std::size_t need = 0;               // continuation bytes
+    unsigned char lo = 0x80, hi = 0xBF; // allowed range of the second byte
+    if (b0 >= 0xC2 && b0 <= 0xDF)
+        need = 1;
+    else if (b0 >= 0xE0 && b0 <= 0xEF) {
+        need = 2;
+        lo = b0 == 0xE0 ? 0xA0 : 0x80; // E0: no overlong forms
+        hi = b0 == 0xED ? 0x9F : 0xBF; // ED: no surrogates
+    } else if (b0 >= 0xF0 && b0 <= 0xF4) {
+        need = 3;
+        lo = b0 == 0xF0 ? 0x90 : 0x80; // F0: no overlong forms
+        hi = b0 == 0xF4 ? 0x8F : 0xBF; // F4: nothing above U+10FFFF
+    } else
+        return {1, false}; // 80..C1 and F5..FF never start a sequence
+    for (std::size_t j = 1; j <= need; ++j) {
+        if (i + j >= s.size())
+            return {j, false};
+        const unsigned char c = b(i + j);
+        if (j == 1 ? (c < lo || c > hi) : (c < 0x80 || c > 0xBF))
+            return {j, false};
+    }
+    return {need + 1, true};
+}
+
+inline constexpr std::string_view replacement_character = "\xEF\xBF\xBD"; // U+FFFD in UTF-8
+
+/// Appends s to out as a JSON string literal (quotes and escapes included). The result is
+/// valid JSON (RFC 8259) for any bytes: control characters are escaped (\n, \r, \t or
+/// \u00XX), and each ill-formed UTF-8 sequence becomes one U+FFFD (written as UTF-8).
 inline void json_quote(std::string& out, std::string_view s) {
     out.push_back('"');
-    for (const char ch : s) {
+    for (std::size_t i = 0; i < s.size();) {
+        const char ch = s[i];
         const auto c = static_cast<unsigned char>(ch);
+        if (c >= 0x80) {
+            const utf8_sequence q = utf8_at(s, i);
+            if (q.valid)
+                out.append(s.substr(i, q.length));
+            else
+                out.append(replacement_character);
+            i += q.length;
+            continue;
+        }
+        ++i;
         switch (c) {
         case '"':
             out += "\\\"";
@@ -59,7 +114,7 @@ inline void json_quote(std::string& out, std::string_view s) {
                 out.push_back(hex[c >> 4]);
                 out.push_back(hex[c & 15]);
             } else {
-                out.push_back(ch); // UTF-8 bytes pass through unchanged
+                out.push_back(ch);
             }
         }
     }

@@ -17,6 +17,10 @@
 // inner train and test lie inside the outer training set and never touch the outer test.
 // Inner bootstrap counts are indexed by original row (size n, zero outside). An outer
 // bootstrap is refused at compile time: its duplicated rows would fall on both inner sides.
+// An inner plan that cannot be built inside some outer training set is refused by inner(i)
+// (input_error "heldout::nested: argument 'inner': cannot be built inside outer split i ...",
+// followed by the inner plan's own message), so no inner split is ever empty on either side
+// where the plan itself forbids it.
 #pragma once
 
 #include <heldout/plan/bootstrap.hpp>
@@ -26,6 +30,7 @@
 #include <cstddef>
 #include <cstdint>
 #include <memory>
+#include <optional>
 #include <span>
 #include <string>
 #include <string_view>
@@ -133,12 +138,21 @@ public:
     outer_range& outer() noexcept { return outer_; }
 
     /// The inner plan's splits inside outer split i's training rows (original row numbers).
+    /// An inner plan that cannot be built on those rows (too few rows, groups or class rows
+    /// for its folds, ...) is refused here, naming the outer split and the inner plan's reason.
     inner_range inner(std::size_t i) const {
         auto c = outer_.cursor();
         const heldout::split& o = c.split(i);
         std::vector<std::size_t> map(o.train.begin(), o.train.end());
-        inner_engine e = inner_splits(inner_, data_, map).engine();
-        return inner_range(detail::mapped_engine<inner_engine>(std::move(e), std::move(map), rows()));
+        std::optional<inner_engine> e;
+        try {
+            e.emplace(inner_splits(inner_, data_, map).engine());
+        } catch (const input_error& err) {
+            detail::fail("heldout::nested", "inner",
+                         "cannot be built inside outer " + detail::split_label(o) + ", which trains on " +
+                             std::to_string(map.size()) + " rows: " + err.what());
+        }
+        return inner_range(detail::mapped_engine<inner_engine>(std::move(*e), std::move(map), rows()));
     }
 
 private:

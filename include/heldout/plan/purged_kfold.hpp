@@ -17,7 +17,10 @@
 // integer times the embargo must be a whole number. Training rows after the test block are
 // used (allowed with purging and embargo, though not in a strict forecasting protocol; use
 // heldout::walk_forward for that). s.repeat = 0, s.fold = f.
-// Bad input: folds < 2, folds > n, negative or non-finite embargo.
+// Bad input: folds < 2, folds > n, negative or non-finite embargo, and a plan that leaves some
+// split with no training row (every other row purged): refused when the range is built, naming
+// the first such split, as argument 'embargo' when the purge alone would have kept a row, else
+// as argument 'intervals' (the label intervals are too long for this many folds).
 #pragma once
 
 #include <heldout/plan/range.hpp>
@@ -72,6 +75,7 @@ public:
                 fail(who_, "embargo", "must be a whole number with integer times, got " + number_text(embargo));
         }
         embargo_ = static_cast<T>(embargo);
+        check_every_split_trains(embargo);
     }
 
     std::string_view name() const noexcept { return who_; }
@@ -91,10 +95,7 @@ public:
         const std::size_t b = block_start(f), e = block_start(f + 1);
         const auto t0 = iv_.t0();
         const auto t1 = iv_.t1();
-        T lo = t0[b], hi = t1[b];
-        for (std::size_t r = b; r < e; ++r)
-            hi = t1[r] > hi ? t1[r] : hi;
-        hi = static_cast<T>(hi + embargo_);
+        const T lo = t0[b], hi = span_end(f, embargo_);
         w.size_buffers(n_ - (e - b), e - b);
         for (std::size_t r = b; r < e; ++r)
             w.test[r - b] = r;
@@ -107,6 +108,7 @@ public:
             w.train[a] = r;
             a += !(t0[r] <= hi && t1[r] >= lo);
         }
+        HELDOUT_ASSERT(a > 0); // refused at construction otherwise
         w.train_size = a;
         w.repeat = 0;
         w.fold = f;
@@ -115,10 +117,50 @@ public:
 
     void check(const split& s, workspace&) const { check_split_purged(who_, s, iv_, embargo_); }
 
+    /// Largest t1 over fold f's block, plus e (the end of its test span extended by e).
+    T span_end(std::size_t f, T e) const noexcept {
+        const auto t1 = iv_.t1();
+        T hi = t1[block_start(f)];
+        for (std::size_t r = block_start(f); r < block_start(f + 1); ++r)
+            hi = t1[r] > hi ? t1[r] : hi;
+        return static_cast<T>(hi + e);
+    }
+
     const intervals<T>& intervals_data() const noexcept { return iv_; }
     T embargo() const noexcept { return embargo_; }
 
 private:
+    /// Refuses a plan in which purging leaves some split without a training row, before any
+    /// split is built. O(n): rows are in time order, so with lo = t0[b] (the block's first
+    /// start) a row before the block survives iff t1 < lo, and a row after it iff t0 > the
+    /// span's end, which the last row decides.
+    void check_every_split_trains(double embargo) const {
+        const auto t0 = iv_.t0();
+        const auto t1 = iv_.t1();
+        T min_t1_before = t1[0]; // min of t1 over rows 0..b-1 (valid for b > 0)
+        for (std::size_t f = 0; f < k_; ++f) {
+            const std::size_t b = block_start(f), e = block_start(f + 1);
+            for (std::size_t r = f == 0 ? 0 : block_start(f - 1); r < b; ++r)
+                min_t1_before = t1[r] < min_t1_before ? t1[r] : min_t1_before;
+            const T lo = t0[b];
+            const bool before = b > 0 && min_t1_before < lo;
+            const bool after = e < n_ && t0[n_ - 1] > span_end(f, embargo_);
+            if (before || after)
+                continue;
+            // The embargo is to blame when the purge alone would have kept a row.
+            const bool embargo_empties = e < n_ && t0[n_ - 1] > span_end(f, T{});
+            fail(who_, embargo_empties ? "embargo" : "intervals",
+                 "with folds = " + std::to_string(k_) + ", embargo = " + number_text(embargo) + " leaves split " +
+                     std::to_string(f) +
+                     " with no training row: the label interval of every row outside its test "
+                     "rows " +
+                     std::to_string(b) + ".." + std::to_string(e - 1) + " meets the test span [" +
+                     number_text(static_cast<double>(lo)) + ", " +
+                     number_text(static_cast<double>(span_end(f, embargo_))) + "]" +
+                     (embargo_empties ? "; use a smaller embargo" : "; use more folds or shorter label intervals"));
+        }
+    }
+
     std::string_view who_;
     std::size_t n_, k_;
     intervals<T> iv_;

@@ -16,7 +16,9 @@
 // not compile (narrowing in a braced initialiser), and a negative number assigned later
 // (w.gap = -1 wraps to 2^64 - 1) is refused at run time as "negative (wrapped to unsigned)".
 // Bad input (heldout::input_error naming the member): initial = 0, horizon = 0, step = 0,
-// window > initial, initial + gap + horizon > n (the horizon runs past the end).
+// window > initial, initial + gap + horizon > n (named 'gap' when the gap alone is to blame,
+// else 'horizon'). So every split has a training row (initial >= 1, window 0 or >= 1) and
+// `horizon` test rows.
 #pragma once
 
 #include <heldout/plan/range.hpp>
@@ -56,7 +58,11 @@ public:
             fail(who_, "window",
                  "sliding window of " + std::to_string(window_) + " rows is longer than the " +
                      std::to_string(initial_) + " initial rows");
-        // Each term is below 2^63 (checked above), so the sum cannot wrap.
+        // Each term is below 2^63 (checked above), so the sums cannot wrap.
+        if (gap_ > 0 && initial_ + horizon_ <= n_ && initial_ + gap_ + horizon_ > n_)
+            fail(who_, "gap",
+                 "leaves no test row: initial " + std::to_string(initial_) + " + gap " + std::to_string(gap_) +
+                     " + horizon " + std::to_string(horizon_) + " exceeds the " + std::to_string(n_) + " rows");
         if (initial_ + gap_ + horizon_ > n_)
             fail(who_, "horizon",
                  "runs past the end: initial " + std::to_string(initial_) + " + gap " + std::to_string(gap_) +

@@ -19,6 +19,7 @@
 #pragma once
 
 #include <heldout/core/error.hpp>
+#include <heldout/detail/json.hpp> // detail::utf8_at, shared with the JSON writer
 
 #include <algorithm>
 #include <charconv>
@@ -64,13 +65,27 @@ inline std::string number(double x, int decimals) {
     return s;
 }
 
-/// Text safe inside XML character data and inside double- or single-quoted attributes.
-/// Control characters other than tab, newline and carriage return are not allowed in
-/// XML 1.0 at all: they become U+FFFD.
+/// Text safe inside XML character data and inside double- or single-quoted attributes, and
+/// well-formed XML 1.0 for any bytes: control characters other than tab, newline and carriage
+/// return are not allowed in XML 1.0 at all, nor are U+FFFE and U+FFFF, and the document is
+/// declared UTF-8, so each of these and each ill-formed UTF-8 sequence (its maximal subpart,
+/// see detail::utf8_at) becomes one U+FFFD.
 inline std::string xml_escape(std::string_view s) {
     std::string out;
     out.reserve(s.size() + 8);
-    for (char c : s) {
+    for (std::size_t i = 0; i < s.size();) {
+        const char c = s[i];
+        if (static_cast<unsigned char>(c) >= 0x80) {
+            const detail::utf8_sequence q = detail::utf8_at(s, i);
+            const std::string_view seq = s.substr(i, q.length);
+            if (q.valid && seq != "\xEF\xBF\xBE" && seq != "\xEF\xBF\xBF") // U+FFFE, U+FFFF
+                out.append(seq);
+            else
+                out.append(detail::replacement_character);
+            i += q.length;
+            continue;
+        }
+        ++i;
         switch (c) {
         case '&':
             out += "&amp;";
@@ -89,7 +104,7 @@ inline std::string xml_escape(std::string_view s) {
             break;
         default:
             if (static_cast<unsigned char>(c) < 0x20 && c != '\t' && c != '\n' && c != '\r')
-                out += "\xEF\xBF\xBD";
+                out.append(detail::replacement_character);
             else
                 out += c;
         }
