@@ -449,6 +449,8 @@ inline void check_table_weight(std::string_view who, const table_view& v, const 
         fail_undefined(who, "no observations");
     if (!(m.total > 0))
         fail_undefined(who, "total weight is zero");
+    if (!(m.total <= std::numeric_limits<double>::max()))
+        fail(who, "weights", "the total weight overflows double (beyond 1.8e308): scale the weights down");
 }
 
 } // namespace detail
