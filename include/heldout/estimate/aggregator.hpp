@@ -802,8 +802,7 @@ inline double mean_of(std::span<const double> v) {
 }
 
 inline double sd_of(std::span<const double> v) {
-    const auto mv = two_pass_mean_variance(v);
-    return std::sqrt(mv.variance);
+    return two_pass_mean_variance(v).root(1.0); // finite for values near +-1e308 too
 }
 
 } // namespace detail
