@@ -274,6 +274,40 @@ TEST_SUITE("measure/weight_scale") {
         costs << 0, 1, 2, 1, 0, 1, 4, 2, 0;
         check_measure(hm::cost_weighted_error{costs}, d.yk, d.lk);
     }
+    TEST_CASE("total weight beyond the double range: the right value, or an input_error naming the weights") {
+        // Weights of 1e308 (valid doubles) whose sums exceed 1.8e308. Measures that keep
+        // ratios of per-row sums rescale by a power of two and give the value of weights 1, 2,
+        // ... (oracle: the same rows with the weights divided by 1e308 / 2^k, exact here); a
+        // table whose total weight is no longer a double is refused, never a NaN.
+        const auto& d = sample();
+        std::vector<double> huge(d.w.size()), unit(d.w.size());
+        for (std::size_t i = 0; i < d.w.size(); ++i) {
+            unit[i] = std::ldexp(std::round(d.w[i] * 4), -2); // quarter steps: exact below
+            huge[i] = std::ldexp(unit[i], 1020);              // up to 2^1024 - ...: sums overflow
+        }
+        const auto same = [&](auto m, const auto& y, const auto& f) {
+            CAPTURE(m.name());
+            CHECK(heldout::evaluate(m, y, f, huge) == heldout::evaluate(m, y, f, unit));
+        };
+        same(hm::auc{}, d.y01, d.score);
+        same(hm::average_precision{}, d.y01, d.score);
+        same(hm::partial_auc{.fpr_low = 0, .fpr_high = 0.3}, d.y01, d.score);
+        same(hm::r_squared{}, d.yr, d.fr);
+        CHECK(heldout::evaluate(hm::multiclass_auc{}, d.yk, heldout::rows(d.rows, 3), huge) ==
+              heldout::evaluate(hm::multiclass_auc{}, d.yk, heldout::rows(d.rows, 3), unit));
+        const auto roc = heldout::roc_points(d.y01, d.score, huge), roc1 = heldout::roc_points(d.y01, d.score, unit);
+        REQUIRE(roc.size() == roc1.size());
+        for (std::size_t i = 0; i < roc.size(); ++i) {
+            CHECK(roc[i].true_positive_rate == roc1[i].true_positive_rate);
+            CHECK(roc[i].false_positive_rate == roc1[i].false_positive_rate);
+        }
+        CHECK_THROWS_WITH_AS(heldout::evaluate(hm::mcc{}, d.y01, d.l01, huge),
+                             "measure MCC: argument 'weights': the total weight overflows double (beyond 1.8e308): "
+                             "scale the weights down",
+                             heldout::input_error);
+        CHECK_THROWS_AS(heldout::evaluate(hm::cohen_kappa{}, d.yk, d.lk, huge), heldout::input_error);
+        CHECK_THROWS_AS(heldout::evaluate(hm::precision{}, d.y01, d.l01, huge), heldout::input_error);
+    }
     TEST_CASE("the confusion table scales with the weights, cell by cell") {
         // It reports weights, not a ratio: table(c w) = c table(w), exactly for c = 2^k.
         const auto& d = sample();
