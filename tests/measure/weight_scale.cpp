@@ -241,6 +241,38 @@ TEST_SUITE("measure/weight_scale") {
         check_measure(hm::median_absolute_error{}, d.yr, d.fr);
         check_measure(hm::max_absolute_error{}, d.yr, d.fr);
     }
+    TEST_CASE("pointwise means: losses far from 1 with weights far from 1") {
+        // Squared errors near 1e-16 with weights near 1e-300 made products of 1e-316, subnormal
+        // (digits lost without a word); errors near 1e5 with weights near 1e300 overflowed the
+        // products (an overflow error although the mean, ~1e10, is a plain double).
+        const auto& d = sample();
+        std::vector<double> tiny_f(d.yr.size()), big_f(d.yr.size());
+        for (std::size_t i = 0; i < d.yr.size(); ++i) {
+            tiny_f[i] = d.yr[i] + 1e-8 * (d.fr[i] - d.yr[i]);
+            big_f[i] = d.yr[i] + 1e5 * (d.fr[i] - d.yr[i]);
+        }
+        for (const auto* f : {&tiny_f, &big_f}) {
+            check_measure(hm::mse{}, d.yr, *f);
+            check_measure(hm::mae{}, d.yr, *f);
+            check_measure(hm::rmse{}, d.yr, *f);
+            check_measure(hm::mean_loss<heldout::loss::pinball>{{0.9}}, d.yr, *f);
+            // add_one, weight by weight, and a merge of accumulators kept in different units
+            check_scales(
+                "MSE by add_one",
+                [&](const std::vector<double>& w) { return heldout::evaluate(hm::mse{}, d.yr, *f, w); },
+                [&](const std::vector<double>& w) {
+                    auto a = hm::mse{}.accumulator(), b = a;
+                    for (std::size_t i = 0; i < w.size(); ++i)
+                        (i % 3 ? a : b).add_one(d.yr[i], (*f)[i], i % 2 ? w[i] : w[i] * 0x1p-400);
+                    a.merge(b);
+                    auto whole = hm::mse{}.accumulator();
+                    for (std::size_t i = 0; i < w.size(); ++i)
+                        whole.add_one(d.yr[i], (*f)[i], i % 2 ? w[i] : w[i] * 0x1p-400);
+                    CHECK(near(a.value(), whole.value()));
+                    return whole.value();
+                });
+        }
+    }
     TEST_CASE("label measures, binary") {
         const auto& d = sample();
         check_measure(hm::classification_error{}, d.y01, d.l01);
