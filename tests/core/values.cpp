@@ -5,7 +5,9 @@
 #include <doctest/doctest.h>
 
 #include <array>
+#include <cmath>
 #include <cstdint>
+#include <limits>
 #include <span>
 #include <vector>
 
@@ -64,5 +66,12 @@ TEST_SUITE("core/values") {
     TEST_CASE("scores become labels only through an explicit threshold") {
         std::vector<double> s{0.2, 0.5, 0.7};
         CHECK(heldout::labels_at(s, 0.5) == std::vector<std::uint8_t>{0, 1, 1});
+        // A non-finite threshold is refused: NaN made every label 0 without a word.
+        CHECK_THROWS_WITH_AS(heldout::labels_at(s, std::nan("")),
+                             "heldout::labels_at: argument 'threshold': not finite (nan)", heldout::input_error);
+        CHECK_THROWS_WITH_AS(heldout::labels_at(s, std::numeric_limits<double>::infinity()),
+                             "heldout::labels_at: argument 'threshold': not finite (inf)", heldout::input_error);
+        CHECK_THROWS_WITH_AS(heldout::labels_at(s, -std::numeric_limits<double>::infinity()),
+                             "heldout::labels_at: argument 'threshold': not finite (inf)", heldout::input_error);
     }
 }

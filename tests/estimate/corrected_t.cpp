@@ -69,6 +69,33 @@ TEST_SUITE("estimate/corrected_t") {
         CHECK(c.lower < n.lower);
         CHECK(c.upper > n.upper);
     }
+    TEST_CASE("split values near +-1e308 and near 1e-200: the result of the scaled values, scaled back") {
+        // mean, se and the bounds are homogeneous of degree 1 in the values, the statistic and
+        // p-value of degree 0 (Nadeau & Bengio 2003's formulas); with c = 2^k every step is
+        // exact, so the values moved to the middle of the range give the oracle bit for bit.
+        const auto check = [](const std::vector<double>& x, int k) {
+            std::vector<double> mid;
+            for (double v : x)
+                mid.push_back(std::ldexp(v, -k));
+            const auto a = heldout::corrected_resampled_t(x, 90, 10);
+            const auto b = heldout::corrected_resampled_t(mid, 90, 10);
+            CHECK(a.mean == std::ldexp(b.mean, k));
+            CHECK(a.se == std::ldexp(b.se, k));
+            CHECK(a.lower == std::ldexp(b.lower, k));
+            CHECK(a.upper == std::ldexp(b.upper, k));
+            CHECK(a.statistic == b.statistic);
+            CHECK(a.p_value == b.p_value);
+            CHECK(std::isfinite(a.upper));
+        };
+        check({1.0e308, 1.5e308, 1.2e308, 0.9e308, 1.1e308}, 1000);
+        check({-1.0e308, 1.0e308, -0.5e308, 0.5e308, 0.25e308}, 1000);
+        check({1e-200, 2e-200, 4e-200, 3e-200}, -700); // before: variance 0, "all values equal"
+        const std::vector<double> wide{-1.7e308, 1.7e308};
+        CHECK_THROWS_WITH_AS(heldout::naive_resampled_t(wide),
+                             "heldout::naive_resampled_t: argument 'differences': arithmetic overflow: the interval's "
+                             "bounds exceed the double range (values too large)",
+                             heldout::input_error);
+    }
     TEST_CASE("undefined and bad input") {
         const std::vector<double> same{0.1, 0.1, 0.1};
         CHECK_THROWS_WITH_AS(

@@ -9,6 +9,7 @@
 #include <doctest/doctest.h>
 
 #include <algorithm>
+#include <cmath>
 #include <random>
 #include <set>
 #include <span>
@@ -166,6 +167,37 @@ TEST_SUITE("estimate/nested_cv") {
         for (const heldout::split& s : heldout::repeated_kfold{.folds = 3, .repeats = 2, .seed = 1}.splits(10))
             if (s.repeat == 1)
                 CHECK(std::vector<std::size_t>(s.test.begin(), s.test.end()) == c[s.fold]);
+    }
+    TEST_CASE("losses near 1e308 and near 1e-211: the result of the scaled losses, scaled back") {
+        // The interval is homogeneous in the losses (Bates, Hastie & Tibshirani's estimator:
+        // means of degree 1, MSE of degree 2), so with c = 2^k, exact in binary floating point,
+        // the losses moved to the middle of the range are the oracle, bit for bit. Before: NaN
+        // at 2^1000 (overflowed sums), and se = 0 at 2^-700 (underflowed squares), silently.
+        const auto cells_at = [](int k) {
+            std::vector<heldout::nested_cv_cell> cells;
+            for (int c = 0; c < 6; ++c) {
+                heldout::nested_cv_cell cell;
+                for (int i = 0; i < 4; ++i)
+                    cell.outer.push_back(std::ldexp(0.6 + 0.1 * ((i * 7 + c * 3) % 5), k));
+                for (int i = 0; i < 5; ++i)
+                    cell.inner.push_back(std::ldexp(0.5 + 0.1 * ((i * 3 + c) % 4), k));
+                cells.push_back(cell);
+            }
+            return cells;
+        };
+        const auto mid = heldout::nested_cv_interval_from_losses(cells_at(0), 3);
+        for (int k : {1000, -700}) {
+            CAPTURE(k);
+            const auto r = heldout::nested_cv_interval_from_losses(cells_at(k), 3);
+            CHECK(r.value == std::ldexp(mid.value, k));
+            CHECK(r.se == std::ldexp(mid.se, k));
+            CHECK(r.se_naive == std::ldexp(mid.se_naive, k));
+            CHECK(r.lower == std::ldexp(mid.lower, k));
+            CHECK(r.upper == std::ldexp(mid.upper, k));
+            CHECK(r.naive_lower == std::ldexp(mid.naive_lower, k));
+            CHECK(r.guard == mid.guard);
+            CHECK(r.se > 0);
+        }
     }
     TEST_CASE("bad input names the function and the argument") {
         const std::vector<double> y(20, 1.0);

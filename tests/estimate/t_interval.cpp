@@ -97,6 +97,39 @@ TEST_SUITE("estimate/t_interval") {
         const auto t = heldout::t_interval(x);
         CHECK(std::abs(t.se - std::sqrt(var / 101)) <= 1e-6 * std::sqrt(var / 101));
     }
+    TEST_CASE("losses near +-1e308 and near 1e-200: the interval of the scaled losses, scaled back") {
+        // A mean interval is equivariant under scaling: interval(c x) = c interval(x) (Student
+        // 1908's formulas are homogeneous of degree 1). With c = 2^k every step is exact in
+        // binary floating point, so the interval of losses near the double range's ends must
+        // equal, bit for bit, that of the same losses moved to the middle of the range. Before
+        // the scaled passes the sum overflowed (mean inf, bounds NaN) or the squares underflowed
+        // (se 0: a silent zero-width interval).
+        const auto check = [](const std::vector<double>& x, int k) {
+            std::vector<double> mid;
+            for (double v : x)
+                mid.push_back(std::ldexp(v, -k));
+            for (const bool student : {true, false}) {
+                CAPTURE(student);
+                const auto a = student ? heldout::t_interval(x) : heldout::normal_interval(x);
+                const auto b = student ? heldout::t_interval(mid) : heldout::normal_interval(mid);
+                CHECK(a.mean == std::ldexp(b.mean, k));
+                CHECK(a.se == std::ldexp(b.se, k));
+                CHECK(a.lower == std::ldexp(b.lower, k));
+                CHECK(a.upper == std::ldexp(b.upper, k));
+                CHECK(std::isfinite(a.lower));
+                CHECK(a.se > 0);
+            }
+        };
+        check({1.0e308, 1.5e308, 1.2e308, 0.9e308, 1.1e308}, 1000);    // the sum overflows
+        check({-1.0e308, 1.0e308, -0.5e308, 0.5e308, 0.25e308}, 1000); // the squares overflow
+        check({1e-200, 2e-200, 4e-200, 3e-200}, -700);                 // the squares underflow
+        // A bound beyond the double range: an input_error, not an infinity.
+        const std::vector<double> wide{-1.7e308, 1.7e308};
+        CHECK_THROWS_WITH_AS(heldout::t_interval(wide),
+                             "heldout::t_interval: argument 'losses': arithmetic overflow: the interval's bounds "
+                             "exceed the double range (values too large)",
+                             heldout::input_error);
+    }
     TEST_CASE("constant losses: zero width; n = 1 undefined; bad input") {
         const std::vector<double> c{0.5, 0.5, 0.5};
         const auto t = heldout::t_interval(c);

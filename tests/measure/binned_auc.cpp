@@ -105,4 +105,34 @@ TEST_SUITE("measure/binned_auc") {
             heldout::undefined_error);
         CHECK(heldout::outer_measure<binned_auc>);
     }
+    TEST_CASE("an absurd bin count is refused before it allocates; 2^24 bins is the limit") {
+        // 1e12 bins would have asked for 16 TB (two doubles a bin).
+        CHECK_THROWS_WITH_AS((binned_auc{.bins = 1000000000000u}.accumulator()),
+                             "measure binned AUC: argument 'bins': 1000000000000 exceeds the limit of 16777216 "
+                             "(2^24) bins",
+                             heldout::input_error);
+        CHECK_THROWS_AS((binned_auc{.bins = (std::size_t{1} << 24) + 1}.accumulator()), heldout::input_error);
+        auto largest = binned_auc{.bins = std::size_t{1} << 24}.accumulator(); // 256 MiB: allowed
+        CHECK(largest.bins() == std::size_t{1} << 24);
+    }
+    TEST_CASE("weights near the double range: the same value; a bin beyond it is refused") {
+        // The value is a ratio of products of bin weights: formed in units of the largest bin
+        // (a power of two), any common scale of the weights gives the same bits.
+        const std::vector<int> y{1, 0, 1, 0, 1};
+        const std::vector<double> s{0.9, 0.1, 0.4, 0.6, 0.55};
+        const std::vector<double> w{1, 2, 3, 1, 2}, big{1e300, 2e300, 3e300, 1e300, 2e300};
+        const auto m = binned_auc{.bins = 4};
+        CHECK(evaluate(m, y, s, big) == doctest::Approx(evaluate(m, y, s, w)).epsilon(1e-15));
+        auto acc = m.accumulator(), unit = m.accumulator();
+        acc.add(y, s, big);
+        unit.add(y, s, w);
+        CHECK(acc.error_bound() == doctest::Approx(unit.error_bound()).epsilon(1e-15));
+        // Two rows of weight 1e308 in one bin: its weight is no longer a double.
+        acc.add_one(1, 0.9, 1e308);
+        acc.add_one(1, 0.9, 1e308);
+        CHECK_THROWS_WITH_AS((void)acc.value(),
+                             "measure binned AUC: argument 'weights': the weight of a bin overflows double (beyond "
+                             "1.8e308): scale the weights down",
+                             heldout::input_error);
+    }
 }

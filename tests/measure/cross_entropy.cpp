@@ -38,14 +38,18 @@ TEST_SUITE("measure/cross_entropy") {
         p[6] = 0.0;
         CHECK(evaluate(cross_entropy{1e-15}, y, p) == doctest::Approx(3.76820614993).epsilon(1e-11));
         CHECK(evaluate(cross_entropy{1e-7}, y, p) == doctest::Approx(1.92613807554).epsilon(1e-11));
-        // The default (eps = 0) does not clip: the true value is +infinity, never a NaN.
-        CHECK(evaluate(cross_entropy{}, y, p) == std::numeric_limits<double>::infinity());
-        // ...unless that row has weight 0.
+        // The default (eps = 0) does not clip: the row's loss would be infinite, so the
+        // measure refuses it, naming the row and the clipping option (no +inf, no NaN).
+        const std::string refused =
+            "measure cross-entropy: argument 'prediction': probability 0 leaves the true class probability 0, so its "
+            "log loss is infinite; to score hard 0/1 probabilities knowingly, set the clipping option eps (common "
+            "practice: eps = 1e-15, clipping to [1e-15, 1 - 1e-15]) at index 6";
+        CHECK_THROWS_WITH_AS(evaluate(cross_entropy{}, y, p), refused.c_str(), heldout::input_error);
+        // ...whatever the row's weight: a hard 0 needs an explicit eps, as a bad probability
+        // needs fixing even in a row of weight 0.
         std::vector<double> w(10, 1.0);
         w[6] = 0;
-        std::vector<double> p_keep = p;
-        p_keep[6] = 0.5; // any value: the row does not count
-        CHECK(evaluate(cross_entropy{}, y, p, w) == doctest::Approx(evaluate(cross_entropy{}, y, p_keep, w)));
+        CHECK_THROWS_WITH_AS(evaluate(cross_entropy{}, y, p, w), refused.c_str(), heldout::input_error);
         // Multiclass: methods.md sec. 6, Check [SELF]: 0.766200336056.
         Eigen::Matrix<double, 6, 3, Eigen::RowMajor> P;
         P << .7, .2, .1, .1, .8, .1, .3, .3, .4, .25, .5, .25, .6, .1, .3, .2, .2, .6;
@@ -53,8 +57,58 @@ TEST_SUITE("measure/cross_entropy") {
         CHECK(evaluate(multiclass_cross_entropy{}, lab, P) == doctest::Approx(0.766200336056).epsilon(1e-12));
         P(1, 1) = 0.0;
         P(1, 0) = 0.9;
-        CHECK(evaluate(multiclass_cross_entropy{}, lab, P) == std::numeric_limits<double>::infinity());
+        CHECK_THROWS_WITH_AS(evaluate(multiclass_cross_entropy{}, lab, P),
+                             "measure multiclass cross-entropy: argument 'prediction': probability 0 leaves the true "
+                             "class probability 0, so its log loss is infinite; to score hard 0/1 probabilities "
+                             "knowingly, set the clipping option eps (common practice: eps = 1e-15, clipping to "
+                             "[1e-15, 1 - 1e-15]) at index 1",
+                             heldout::input_error);
         CHECK(std::isfinite(evaluate(multiclass_cross_entropy{1e-12}, lab, P)));
+    }
+    TEST_CASE_TEMPLATE("a hard 0 or 1 for the wrong class: input_error at its row, from every route", T, float,
+                       double) {
+        // p = 1 with truth 0 leaves probability 0 to the true class as well. The row sits past
+        // the first chunk of the pass (512 rows), after rows that are fine.
+        std::vector<std::uint8_t> y(1500);
+        std::vector<T> p(1500);
+        for (std::size_t i = 0; i < y.size(); ++i) {
+            y[i] = static_cast<std::uint8_t>(i % 3 == 0);
+            p[i] = y[i] ? T(0.75) : T(0.25);
+        }
+        p[1234] = T(1); // 1234 = 3 * 411 + 1: truth 0, so p = 1 is the wrong hard value
+        const auto msg = [](const std::string& who, const std::string& prob, std::size_t i) {
+            return who + ": argument 'prediction': probability " + prob +
+                   " leaves the true class probability 0, so its log loss is infinite; to score hard 0/1 "
+                   "probabilities knowingly, set the clipping option eps (common practice: eps = 1e-15, clipping "
+                   "to [1e-15, 1 - 1e-15]) at index " +
+                   std::to_string(i);
+        };
+        CHECK_THROWS_WITH_AS(evaluate(cross_entropy{}, y, p), msg("measure cross-entropy", "1", 1234).c_str(),
+                             heldout::input_error);
+        auto acc = cross_entropy{}.accumulator();
+        acc.add(std::span(y).first(1000), std::span(p).first(1000));
+        const double before = acc.value();
+        CHECK_THROWS_WITH_AS(acc.add(y, p), msg("measure cross-entropy", "1", 1234).c_str(), heldout::input_error);
+        CHECK(acc.value() == before); // the refused batch left the state as it was
+        for (auto which : {heldout::detail::isa::baseline, heldout::detail::isa::avx2, heldout::detail::isa::avx512})
+            if (heldout::detail::isa_supported(which))
+                CHECK_THROWS_WITH_AS(acc.add_with(which, y, p), msg("measure cross-entropy", "1", 1234).c_str(),
+                                     heldout::input_error);
+        CHECK_THROWS_WITH_AS(acc.add_one(1, 0.0), msg("measure cross-entropy", "0", 0).c_str(), heldout::input_error);
+        CHECK_THROWS_WITH_AS(acc.add_one(0, 1.0, 2.0), msg("measure cross-entropy", "1", 0).c_str(),
+                             heldout::input_error);
+        CHECK(acc.value() == before);
+        // Clipped, the same rows are scored: the hard 1 (truth 0) becomes the double 1 - 1e-15,
+        // which costs -log(1 - (1 - 1e-15)) = 34.43 (1 - 1e-15 is not exact in binary).
+        y.resize(3);
+        p.resize(3);
+        p[1] = T(1); // truth 0
+        const double clipped = evaluate(cross_entropy{1e-15}, y, p);
+        const double hard = -std::log1p(-(1.0 - 1e-15));
+        CHECK(clipped == doctest::Approx((-std::log(0.75) + hard - std::log(0.75)) / 3).epsilon(1e-6));
+        // Right-class hard values are fine without eps: log 1 = 0.
+        p[1] = T(0);
+        CHECK(evaluate(cross_entropy{}, y, p) == doctest::Approx(-2 * std::log(0.75) / 3).epsilon(1e-6));
     }
     TEST_CASE("live reference: scipy.special.xlogy / xlog1py with numpy.average and numpy.clip") {
         heldout_test::reference_table ref("ref_cross_entropy");

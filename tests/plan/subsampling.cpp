@@ -66,7 +66,7 @@ TEST_SUITE("plan/subsampling") {
         CHECK(message([] { heldout::subsampling{.repeats = 3, .test_fraction = 0}.splits(10); }) ==
               "heldout::subsampling: argument 'test_fraction': must lie in (0, 1), got 0");
         CHECK(message([] { heldout::subsampling{.repeats = 3, .test_fraction = 0.04}.splits(10); }) ==
-              "heldout::subsampling: argument 'test_fraction': 0.040000000000000001 of 10 rows rounds to no test rows");
+              "heldout::subsampling: argument 'test_fraction': 0.04 of 10 rows rounds to no test rows");
         CHECK(message([] { heldout::subsampling{.repeats = 3, .test_count = 12}.splits(10); }) ==
               "heldout::subsampling: argument 'test_count': 12 test rows leave no training rows out of 10");
         const std::vector<int> g{1, 1, 1, 1, 1, 1, 1, 1, 2, 3};

@@ -170,18 +170,22 @@ void check_merge_into_fresh(const std::string& label, const M& m, const data& d)
 
 TEST_SUITE("stream/serialize") {
     TEST_CASE("the documented layout: magic, version, schema, little-endian fields, hash") {
+        // MSE's state: loss sum 1, carry 0, weight sum 1, carry 0, the unit of weight (the
+        // exponent e of 2^e in which the sums are kept: 0 here; added with the weight-scale
+        // fix, so the schema gained its 'i'), count 1.
         auto acc = heldout::measure::mse{}.accumulator();
-        acc.add_one(1.0, 0.0); // loss sum 1, carry 0, weight sum 1, carry 0, count 1
+        acc.add_one(1.0, 0.0);
         const auto bytes = heldout::serialize(acc);
-        REQUIRE(bytes.size() == 4 + 2 + 2 + 4 + 5 + 5 * 8 + 8);
+        REQUIRE(bytes.size() == 4 + 2 + 2 + 4 + 6 + 6 * 8 + 8);
         CHECK(std::memcmp(bytes.data(), "HDST", 4) == 0);
         CHECK(bytes[4] == std::byte{1});
-        CHECK(bytes[8] == std::byte{5}); // schema length 5: "ddddu"
-        CHECK(std::memcmp(bytes.data() + 12, "ddddu", 5) == 0);
+        CHECK(bytes[8] == std::byte{6}); // schema length 6: "ddddiu"
+        CHECK(std::memcmp(bytes.data() + 12, "ddddiu", 6) == 0);
         // first field: 1.0 as binary64 little-endian = 00 00 00 00 00 00 F0 3F (IEEE 754)
-        CHECK(bytes[17 + 6] == std::byte{0xF0});
-        CHECK(bytes[17 + 7] == std::byte{0x3F});
-        CHECK(bytes[17 + 32] == std::byte{1}); // count = 1, low byte first
+        CHECK(bytes[18 + 6] == std::byte{0xF0});
+        CHECK(bytes[18 + 7] == std::byte{0x3F});
+        CHECK(bytes[18 + 32] == std::byte{0}); // unit = 0
+        CHECK(bytes[18 + 40] == std::byte{1}); // count = 1, low byte first
     }
     TEST_CASE("every supported field kind round-trips") {
         every_field e;

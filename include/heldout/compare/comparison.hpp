@@ -174,11 +174,11 @@ inline void write_csv(std::ostream& os, std::span<const comparison> cs) {
         for (const auto& n : c.notes)
             notes += (notes.empty() ? "" : "; ") + n;
         os << detail::csv_field(c.measure) << ',' << detail::csv_field(c.model_a) << ',' << detail::csv_field(c.model_b)
-           << ',' << paired::id_text(c.method) << ',' << detail::shortest_text(c.level) << ','
-           << detail::shortest_text(c.difference) << ',' << detail::csv_number(c.se) << ','
+           << ',' << paired::id_text(c.method) << ',' << detail::number_text(c.level) << ','
+           << detail::number_text(c.difference) << ',' << detail::csv_number(c.se) << ','
            << detail::csv_number(c.lower) << ',' << detail::csv_number(c.upper) << ','
-           << detail::shortest_text(c.statistic) << ',' << detail::csv_number(c.df) << ',' << detail::csv_number(c.df2)
-           << ',' << detail::shortest_text(c.p_value) << ',' << detail::csv_number(c.adjusted_p_value) << ','
+           << detail::number_text(c.statistic) << ',' << detail::csv_number(c.df) << ',' << detail::csv_number(c.df2)
+           << ',' << detail::number_text(c.p_value) << ',' << detail::csv_number(c.adjusted_p_value) << ','
            << c.splits << ',' << c.observations << ',' << detail::csv_field(notes) << '\n';
     }
 }

@@ -31,10 +31,9 @@
 
 #include <heldout/core/config.hpp>
 
+#include <charconv>
 #include <cstddef>
 #include <optional>
-#include <cstdio>
-#include <cstdlib>
 #include <stdexcept>
 #include <string>
 #include <string_view>
@@ -189,15 +188,13 @@ namespace detail {
     throw input_error(std::move(d));
 }
 
-/// Shortest text of a double that reads back to the same double ("0.3", "1e-15", "-0").
+/// Shortest text of a double that reads back to the same double ("0.3", "1e-15", "10", "-0"):
+/// std::to_chars' shortest form, the same on libstdc++ and libc++ and independent of the
+/// C locale (tests/detail/json.cpp checks it against the standard's rule).
 inline std::string number_text(double x) {
-    char buf[40];
-    for (int digits = 1; digits <= 17; ++digits) {
-        std::snprintf(buf, sizeof buf, "%.*g", digits, x);
-        if (digits == 17 || std::strtod(buf, nullptr) == x || x != x)
-            break;
-    }
-    return buf;
+    char buf[64];
+    const auto r = std::to_chars(buf, buf + sizeof buf, x);
+    return std::string(buf, r.ptr);
 }
 
 } // namespace detail

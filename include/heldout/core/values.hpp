@@ -179,8 +179,14 @@ std::size_t prediction_rows(const P& p) {
 } // namespace detail
 
 /// Scores become labels only through an explicit threshold: label 1 where score >= t.
+/// A NaN threshold would silently label every row 0 (every comparison false), an infinite
+/// one every row alike: both are input_error.
 template <real_range R>
 std::vector<std::uint8_t> labels_at(const R& scores, double threshold) {
+    if (threshold != threshold)
+        detail::fail("heldout::labels_at", "threshold", "not finite (nan)");
+    if (threshold - threshold != 0.0) // inf - inf is NaN (no <cmath> in this light header)
+        detail::fail("heldout::labels_at", "threshold", "not finite (inf)");
     auto s = values_of(scores, "heldout::labels_at", "scores");
     std::vector<std::uint8_t> out(s.size());
     for (std::size_t i = 0; i < s.size(); ++i) {

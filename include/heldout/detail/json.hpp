@@ -9,6 +9,7 @@
 #pragma once
 
 #include <heldout/core/config.hpp>
+#include <heldout/core/error.hpp>
 
 #include <charconv>
 #include <cmath>
@@ -23,14 +24,6 @@
 
 HELDOUT_NAMESPACE_BEGIN
 namespace detail {
-
-/// Shortest round-trip decimal text of a finite double ("0.1", "1e-300", "-0").
-inline std::string shortest_text(double x) {
-    char buf[64];
-    const auto r = std::to_chars(buf, buf + sizeof buf, x);
-    HELDOUT_ASSERT(r.ec == std::errc{});
-    return std::string(buf, r.ptr);
-}
 
 /// The UTF-8 sequence at s[i]: its length, and whether it is well formed (Unicode 15.0,
 /// Section 3.9, Table 3-7: no overlong forms, no surrogates, nothing above U+10FFFF). An
@@ -158,7 +151,7 @@ public:
     json_writer& value(double x) {
         comma();
         if (std::isfinite(x))
-            out_ += shortest_text(x);
+            out_ += number_text(x);
         else
             out_ += "null";
         return *this;

@@ -359,11 +359,14 @@ inline void refine_runs(const std::uint32_t* hi, std::uint64_t* pay, std::size_t
 }
 
 /// Tie groups (ascending score) of sorted rows; weights indexed by original row, or none.
+/// Weighted, the group sums are of the weights times `scale` (a power of two, see
+/// collect_groups); returns false when the total weight overflowed.
 template <class T, class W>
-void collect_groups(const sorted_rows<T>& r, const W* weights, std::vector<tie_group>& out) {
+bool collect_groups_scaled(const sorted_rows<T>& r, const W* weights, double scale, std::vector<tie_group>& out) {
     out.clear();
     std::size_t i = 0;
     const std::size_t n = r.n;
+    double total = 0; // of the weighted group sums: overflow shows as +inf
     while (i < n) {
         const std::size_t first = i;
         compensated_sum p, q;
@@ -371,35 +374,63 @@ void collect_groups(const sorted_rows<T>& r, const W* weights, std::vector<tie_g
         do {
             const std::uint32_t v = r.at(i);
             if (weights) {
-                const double w = static_cast<double>(weights[v & ~label_bit]);
+                const double w = static_cast<double>(weights[v & ~label_bit]) * scale;
                 (v & label_bit) ? p.add(w) : q.add(w);
             } else {
                 (v & label_bit) ? ++up : ++uq;
             }
             ++i;
         } while (i < n && r.same(i));
-        if (weights)
+        if (weights) {
             out.push_back({r.score(first), p.value(), q.value()});
-        else
+            total += out.back().positive + out.back().negative;
+        } else {
             out.push_back({r.score(first), up, uq});
+        }
     }
+    return total <= std::numeric_limits<double>::max();
+}
+
+/// Tie groups (ascending score) of sorted rows; weights indexed by original row, or none.
+/// Every consumer uses ratios of the group sums, so their scale is free: when a weighted
+/// group sum overflows (total weight beyond about 1.8e308), the sums are taken again of the
+/// weights scaled by a power of two that brings the largest to [1, 2) (exact).
+template <class T, class W>
+void collect_groups(const sorted_rows<T>& r, const W* weights, std::vector<tie_group>& out) {
+    if (collect_groups_scaled(r, weights, 1.0, out) || !weights)
+        return;
+    double top = 0;
+    for (std::size_t i = 0; i < r.n; ++i)
+        top = std::max(top, static_cast<double>(weights[i]));
+    collect_groups_scaled(r, weights, unit_scale(top), out);
 }
 
 /// Weighted Mann–Whitney sums from ascending tie groups: U = sum_g P_g (N_below + N_g / 2).
+/// u is of the group sums times `scale` (u scale^2 in the original units), so that it neither
+/// overflows nor underflows whatever the scale of the weights; positive and negative are the
+/// class totals in the groups' units.
 struct weighted_rank_sum {
     double u = 0;
     double positive = 0;
     double negative = 0;
+    double scale = 1;
+    /// U / (P N): the weighted AUC, with every product formed in the scaled units.
+    double auc() const noexcept { return u / (positive * scale) / (negative * scale); }
 };
 
 inline weighted_rank_sum mann_whitney_of_groups(std::span<const tie_group> g) noexcept {
+    double top = 0;
+    for (const auto& t : g)
+        top = std::max(top, std::max(t.positive, t.negative));
+    const double s = unit_scale(top);
     compensated_sum u, below, pos;
     for (const auto& t : g) {
-        u.add(t.positive * (below.value() + 0.5 * t.negative));
-        below.add(t.negative);
-        pos.add(t.positive);
+        const double p = t.positive * s, q = t.negative * s;
+        u.add(p * (below.value() + 0.5 * q));
+        below.add(q);
+        pos.add(p);
     }
-    return {u.value(), pos.value(), below.value()};
+    return {u.value(), pos.value() / s, below.value() / s, s};
 }
 
 /// Throws undefined_error when a class has no observations (or, weighted, no weight),
@@ -601,7 +632,7 @@ double exact_weighted_auc(std::string_view who, std::span<const T> s, std::span<
                           rank_scratch& scratch, std::string_view scores_arg = "scores") {
     const weighted_rank_sum r = mann_whitney_of_groups(ranked_groups(who, s, y, w, scratch, scores_arg));
     check_both_classes(who, r.positive, r.negative, true);
-    return r.u / r.positive / r.negative;
+    return r.auc();
 }
 
 } // namespace detail

@@ -14,6 +14,7 @@
 #include <array>
 #include <cmath>
 #include <cstddef>
+#include <limits>
 
 HELDOUT_NAMESPACE_BEGIN
 namespace detail {
@@ -50,6 +51,19 @@ struct compensated_sum {
     }
     friend bool operator==(const compensated_sum&, const compensated_sum&) = default;
 };
+
+/// The power of two 2^-e that brings a positive finite x into [1, 2) (1 when x is 0 or not
+/// finite; at most 2^1022, so that it is finite for subnormal x). Why: weights mean only their
+/// ratios, but products of weight sums (AUC's sum P_g N_below, MCC's TP TN) overflow or
+/// underflow when all weights are scaled by 1e+-155 and beyond. Scaling the sums by this
+/// factor first keeps the products near 1, and being a power of two it changes no bit of any
+/// normal value: ratios of the scaled products equal the unscaled ones exactly.
+inline double unit_scale(double x) noexcept {
+    if (!(x > 0) || !(x <= std::numeric_limits<double>::max()))
+        return 1.0;
+    const int e = std::ilogb(x);
+    return std::ldexp(1.0, e < -1022 ? 1022 : -e);
+}
 
 inline constexpr std::size_t lanes = 8;
 inline constexpr std::size_t block_rows = 2048;

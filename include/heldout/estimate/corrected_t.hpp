@@ -58,18 +58,19 @@ resampled_t_result resampled_t(const R& values, double ratio, double level, std:
     if (v.size() < 2)
         fail_undefined(who, "one split has no variance (J = 1)");
     const auto mv = two_pass_mean_variance(v);
-    if (!(mv.variance > 0))
+    if (!(mv.scaled_variance > 0)) // not variance: it underflows to 0 for values near 1e-200
         fail_undefined(who, "all split values are equal (variance 0): the t statistic is undefined");
     const double J = static_cast<double>(v.size());
     resampled_t_result r;
     r.mean = mv.mean;
-    r.se = std::sqrt((1.0 / J + ratio) * mv.variance);
+    r.se = mv.root(1.0 / J + ratio);
     r.statistic = r.mean / r.se;
     r.df = J - 1;
     r.p_value = two_sided_t_p(r.statistic, r.df);
     const double q = two_sided_t(level, r.df);
     r.lower = r.mean - q * r.se;
     r.upper = r.mean + q * r.se;
+    check_bounds(who, "differences", r.lower, r.upper);
     r.level = level;
     r.splits = v.size();
     r.correction = ratio;

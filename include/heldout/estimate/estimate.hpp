@@ -101,7 +101,7 @@ inline std::string csv_field(std::string_view s) {
 }
 
 inline std::string csv_number(const std::optional<double>& x) {
-    return x && std::isfinite(*x) ? shortest_text(*x) : std::string();
+    return x && std::isfinite(*x) ? number_text(*x) : std::string();
 }
 
 inline void write_estimate_json(json_writer& w, const estimate& e) {
@@ -197,8 +197,8 @@ inline void write_csv(std::ostream& os, std::span<const estimate> es) {
         for (const auto& n : e.notes)
             notes += (notes.empty() ? "" : "; ") + n;
         const std::string head = detail::csv_field(e.measure) + "," + std::string(ci::id_text(e.method)) + "," +
-                                 detail::shortest_text(e.level);
-        os << "estimate," << head << "," << detail::shortest_text(e.value) << "," << detail::csv_number(e.se) << ","
+                                 detail::number_text(e.level);
+        os << "estimate," << head << "," << detail::number_text(e.value) << "," << detail::csv_number(e.se) << ","
            << detail::csv_number(e.lower) << "," << detail::csv_number(e.upper) << "," << detail::csv_number(e.pooled)
            << "," << e.splits << "," << e.observations << ",,,,,," << detail::csv_field(notes) << '\n';
         for (const auto& s : e.per_split)

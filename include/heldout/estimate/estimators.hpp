@@ -59,8 +59,7 @@ inline double mean_of(std::span<const double> v) {
 }
 
 inline double sd_of(std::span<const double> v) {
-    const auto mv = two_pass_mean_variance(v);
-    return std::sqrt(mv.variance);
+    return two_pass_mean_variance(v).root(1.0); // finite for values near +-1e308 too
 }
 
 /// What an interval method reads: the record and the measure's track.

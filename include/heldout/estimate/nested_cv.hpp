@@ -120,6 +120,17 @@ inline nested_cv_result nested_cv_interval_from_losses(std::span<const nested_cv
                                 std::to_string(n),
                             r * folds);
     }
+    // Every loss in units of the power of two that brings the largest |loss| to [1, 2) (exact):
+    // losses near +-1e308 do not overflow the sums and squares, nor do losses near 1e-200
+    // underflow the squares (a silent zero-width interval); the results are scaled back.
+    double top = 0;
+    for (const auto& cell : cells) {
+        for (double x : cell.outer)
+            top = std::abs(x) > top ? std::abs(x) : top;
+        for (double x : cell.inner)
+            top = std::abs(x) > top ? std::abs(x) : top;
+    }
+    const double unit = detail::unit_scale(top);
     detail::compensated_sum a_sum, b_sum, inner_sum, outer_sum;
     for (std::size_t c = 0; c < cells.size(); ++c) {
         const auto& cell = cells[c];
@@ -130,15 +141,16 @@ inline nested_cv_result nested_cv_interval_from_losses(std::span<const nested_cv
         detail::check_finite(who, "cells.outer", std::span<const double>(cell.outer));
         detail::check_finite(who, "cells.inner", std::span<const double>(cell.inner));
         const auto o = detail::two_pass_mean_variance(std::span<const double>(cell.outer));
+        const double om = o.mean * unit, to_unit = unit / o.unit; // the cell's own unit to ours
         detail::compensated_sum si;
         for (double x : cell.inner)
-            si.add(x);
+            si.add(x * unit);
         const double mi = si.value() / static_cast<double>(cell.inner.size());
-        a_sum.add((mi - o.mean) * (mi - o.mean));
-        b_sum.add(o.variance / static_cast<double>(cell.outer.size()));
+        a_sum.add((mi - om) * (mi - om));
+        b_sum.add(o.scaled_variance * to_unit * to_unit / static_cast<double>(cell.outer.size()));
         inner_sum.add(mi);
         for (double x : cell.outer)
-            outer_sum.add(x);
+            outer_sum.add(x * unit);
     }
     const double C = static_cast<double>(cells.size());
     const double K = static_cast<double>(folds);
@@ -147,18 +159,20 @@ inline nested_cv_result nested_cv_interval_from_losses(std::span<const nested_cv
     r.folds = folds;
     r.repeats = R;
     r.n = n;
-    r.mse_estimate = a_sum.value() / C - b_sum.value() / C;
-    r.nested_estimate = inner_sum.value() / C;
+    const double mse = a_sum.value() / C - b_sum.value() / C; // in unit^2
+    r.mse_estimate = mse / unit / unit;                       // 0 or inf when beyond the range
+    r.nested_estimate = inner_sum.value() / C / unit;
     const double total = static_cast<double>(R * n);
-    r.cv_estimate = outer_sum.value() / total;
+    const double cv = outer_sum.value() / total;
+    r.cv_estimate = cv / unit;
     detail::compensated_sum dev;
     for (const auto& cell : cells)
         for (double x : cell.outer)
-            dev.add((x - r.cv_estimate) * (x - r.cv_estimate));
-    r.se_naive = std::sqrt(dev.value() / (total - 1.0)) / std::sqrt(static_cast<double>(n));
+            dev.add((x * unit - cv) * (x * unit - cv));
+    r.se_naive = std::sqrt(dev.value() / (total - 1.0)) / std::sqrt(static_cast<double>(n)) / unit;
     r.bias = (1.0 + (K - 2.0) / K) * (r.nested_estimate - r.cv_estimate);
     r.value = r.nested_estimate - r.bias;
-    const double se = std::sqrt(std::max(r.mse_estimate, 0.0) * (K - 1.0) / K);
+    const double se = std::sqrt(std::max(mse, 0.0) * (K - 1.0) / K) / unit;
     const double ceiling = std::sqrt(K) * r.se_naive;
     if (se < r.se_naive) {
         r.se = r.se_naive;
@@ -175,6 +189,8 @@ inline nested_cv_result nested_cv_interval_from_losses(std::span<const nested_cv
     r.upper = r.value + z * r.se;
     r.naive_lower = r.cv_estimate - z * r.se_naive;
     r.naive_upper = r.cv_estimate + z * r.se_naive;
+    detail::check_bounds(who, "cells", r.lower, r.upper);
+    detail::check_bounds(who, "cells", r.naive_lower, r.naive_upper);
     return r;
 }
 

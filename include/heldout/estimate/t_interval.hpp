@@ -10,7 +10,9 @@
 // se = s / sqrt(n); t interval m +- t_{1-a/2, n-1} se; normal interval m +- z_{1-a/2} se.
 // The variance is computed in two passes (mean first, then the compensated sum of squared
 // deviations), because the one-pass sum(x^2) - n m^2 cancels catastrophically for large
-// losses with a small spread. Quantiles come from Boost.Math (students_t, normal), which
+// losses with a small spread; both passes work on the values scaled by a power of two (exact),
+// so losses near +-1e308 give the right interval, and a bound beyond the double range is an
+// input_error rather than an infinity. Quantiles come from Boost.Math (students_t, normal), which
 // agree with R's qt to ~2e-15 relative (tested to 1e-12).
 //
 // Policies: n = 0 or a non-finite loss -> input_error; n = 1 -> undefined_error (no
@@ -70,27 +72,48 @@ inline double two_sided_t_p(double t, double df) {
            boost::math::cdf(boost::math::complement(boost::math::students_t_distribution<double>(df), std::abs(t)));
 }
 
-/// Mean and sample variance (denominator n - 1) in two compensated passes.
+/// Mean and sample variance (denominator n - 1) in two compensated passes, on the values
+/// scaled by the power of two `unit` that brings the largest |x| to [1, 2) (exact): values
+/// near +-1e308 neither overflow the sum nor the squares, nor do values near 1e-200 underflow
+/// the squares. `variance` itself is +inf (or 0) when it leaves the double range; test
+/// scaled_variance for zero, and use root(c) = sqrt(c * variance), finite whenever the result is.
 struct mean_variance {
     double mean = 0;
     double variance = 0;
+    double scaled_variance = 0; ///< variance * unit^2
+    double unit = 1;
+    /// sqrt(c * variance), computed in the scaled units (the same bits when nothing overflows).
+    double root(double c) const { return std::sqrt(c * scaled_variance) / unit; }
+    /// sqrt(variance / n), likewise.
+    double root_over(double n) const { return std::sqrt(scaled_variance / n) / unit; }
 };
 
 template <class T>
 mean_variance two_pass_mean_variance(std::span<const T> v) {
     // Equal values give exactly (x, 0): x + x + x divided by 3 need not round back to x.
     if (std::all_of(v.begin(), v.end(), [&](const T& x) { return x == v[0]; }))
-        return {static_cast<double>(v[0]), 0.0};
+        return {static_cast<double>(v[0]), 0.0, 0.0, 1.0};
+    double top = 0;
+    for (const T& x : v)
+        top = std::max(top, std::abs(static_cast<double>(x)));
+    const double unit = unit_scale(top);
     compensated_sum s;
     for (const T& x : v)
-        s.add(static_cast<double>(x));
+        s.add(static_cast<double>(x) * unit);
     const double m = s.value() / static_cast<double>(v.size());
     compensated_sum q;
     for (const T& x : v) {
-        const double d = static_cast<double>(x) - m;
+        const double d = static_cast<double>(x) * unit - m;
         q.add(d * d);
     }
-    return {m, v.size() > 1 ? q.value() / static_cast<double>(v.size() - 1) : 0.0};
+    const double var = v.size() > 1 ? q.value() / static_cast<double>(v.size() - 1) : 0.0;
+    return {m / unit, var / unit / unit, var, unit};
+}
+
+/// Throws when a bound of an interval leaves the double range (mean +- q se beyond 1.8e308).
+inline void check_bounds(std::string_view who, std::string_view arg, double lower, double upper) {
+    if (!std::isfinite(lower) || !std::isfinite(upper))
+        fail(who, arg, "arithmetic overflow: the interval's bounds exceed the double range (values too large)");
 }
 
 } // namespace detail
@@ -120,13 +143,14 @@ mean_interval mean_interval_of(const R& losses, double level, bool student, std:
     const double n = static_cast<double>(v.size());
     mean_interval r;
     r.mean = mv.mean;
-    r.se = std::sqrt(mv.variance / n);
+    r.se = mv.root_over(n);
     r.level = level;
     r.n = v.size();
     r.df = student ? n - 1 : std::numeric_limits<double>::infinity();
     const double q = student ? two_sided_t(level, n - 1) : two_sided_z(level);
     r.lower = r.mean - q * r.se;
     r.upper = r.mean + q * r.se;
+    check_bounds(who, "losses", r.lower, r.upper);
     return r;
 }
 } // namespace detail

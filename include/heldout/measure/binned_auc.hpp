@@ -22,8 +22,10 @@
 // It is attained when, in every shared bin, all positives lie above (or all below) the
 // negatives; it shrinks as bins narrow relative to the score density.
 // Errors: a score outside [low, high] or not finite, labels outside 0/1, bad weights ->
-// input_error with the index; bins = 0 or low >= high -> input_error; merging accumulators
-// of different bins or range -> input_error; a class absent -> undefined_error.
+// input_error with the index; bins = 0 or above 2^24, or low >= high -> input_error; merging
+// accumulators of different bins or range -> input_error; a class absent -> undefined_error;
+// a bin whose weight overflows double -> input_error naming the weights. The value does not
+// depend on the scale of the weights (products are formed in units of the largest bin).
 #pragma once
 
 #include <heldout/core/measure.hpp>
@@ -32,6 +34,7 @@
 #include <algorithm>
 #include <cmath>
 #include <cstdint>
+#include <limits>
 #include <span>
 #include <string>
 #include <utility>
@@ -49,6 +52,9 @@ public:
     binned_auc_accumulator(std::size_t bins, double low, double high) : bins_(bins), low_(low), high_(high) {
         if (bins == 0)
             detail::fail(who(), "bins", "must be positive");
+        if (bins > max_bins)
+            detail::fail(who(), "bins",
+                         std::to_string(bins) + " exceeds the limit of " + std::to_string(max_bins) + " (2^24) bins");
         if (!(std::isfinite(low) && std::isfinite(high) && low < high))
             detail::fail(who(), "high",
                          "need finite low < high, got [" + detail::number_text(low) + ", " + detail::number_text(high) +
@@ -140,6 +146,11 @@ private:
         double u, p, n, shared;
     };
     static std::string_view who() { return "measure binned AUC"; }
+    // Why 2^24: that many bins already hold 256 MiB of state, copied by every merge and
+    // serialisation, and resolve [low, high] finer than a float resolves [0.5, 1) (2^23
+    // values); the exact measure::auc needs less memory than that up to about 2^24 rows. A
+    // larger count is a mistake, refused before it allocates (1e12 bins would take 16 TB).
+    static constexpr std::size_t max_bins = std::size_t{1} << 24;
     std::string range() const { return "[" + detail::number_text(low_) + ", " + detail::number_text(high_) + "]"; }
 
     std::size_t bin(double s) const noexcept {
@@ -170,13 +181,24 @@ private:
         }
     }
 
+    /// The sums in units of the largest bin weight (scaled by a power of two, exact), so that
+    /// the products of bin weights neither overflow nor underflow at any scale of the weights;
+    /// value() and error_bound() are ratios, so the units cancel to the last bit.
     sums totals() const {
+        double top = 0;
+        for (std::size_t b = 0; b < positive_.size(); ++b)
+            top = std::max(top, std::max(positive_[b], negative_[b]));
+        if (!(top <= std::numeric_limits<double>::max()))
+            detail::fail(who(), "weights",
+                         "the weight of a bin overflows double (beyond 1.8e308): scale the weights down");
+        const double scale = detail::unit_scale(top);
         detail::compensated_sum u, below, pos, shared;
         for (std::size_t b = 0; b < positive_.size(); ++b) {
-            u.add(positive_[b] * (below.value() + 0.5 * negative_[b]));
-            shared.add(positive_[b] * negative_[b]);
-            below.add(negative_[b]);
-            pos.add(positive_[b]);
+            const double p = positive_[b] * scale, q = negative_[b] * scale;
+            u.add(p * (below.value() + 0.5 * q));
+            shared.add(p * q);
+            below.add(q);
+            pos.add(p);
         }
         detail::check_both_classes(who(), pos.value(), below.value(), true);
         return {u.value(), pos.value(), below.value(), shared.value()};

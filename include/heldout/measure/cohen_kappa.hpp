@@ -66,19 +66,24 @@ struct cohen_kappa {
     /// The value from a table and its margins; `who` names the measure in messages.
     double from_view(const detail::table_view& v, const detail::table_margins& m, std::string_view who) const {
         detail::check_table_weight(who, v, m);
-        const double n = m.total;
+        // Margins, cells and total in units of the total weight (a power of two, exact): the
+        // products neither overflow nor underflow at any scale of the weights, and the ratios
+        // keep every bit.
+        const double u = detail::unit_scale(m.total);
+        const double n = m.total * u;
         const char* const reason = "chance disagreement is zero (p_e = 1: both sides put every observation in one "
                                    "and the same class)";
         if (weighting == kappa_weighting::unweighted || v.k < 2) {
             detail::compensated_sum agree{}, chance{};
             for (std::size_t i = 0; i < v.k; ++i) {
-                agree.add(m.row[i] * m.col[i]);
-                chance.add(m.row[i] * (n - m.col[i]));
+                const double r = m.row[i] * u, c = m.col[i] * u;
+                agree.add(r * c);
+                chance.add(r * (n - c));
             }
             const double den = chance.value(); // N^2 (1 - p_e)
             if (!(den > 0))
                 detail::fail_undefined(who, reason);
-            return (m.trace * n - agree.value()) / den; // N^2 (p_o - p_e) / N^2 (1 - p_e)
+            return (m.trace * u * n - agree.value()) / den; // N^2 (p_o - p_e) / N^2 (1 - p_e)
         }
         const double scale = static_cast<double>(v.k - 1);
         detail::compensated_sum observed{}, expected{};
@@ -86,8 +91,8 @@ struct cohen_kappa {
             for (std::size_t j = 0; j < v.k; ++j) {
                 const double d = std::abs(static_cast<double>(i) - static_cast<double>(j)) / scale;
                 const double w = weighting == kappa_weighting::linear ? d : d * d;
-                observed.add(w * v(i, j));
-                expected.add(w * m.row[i] * m.col[j]);
+                observed.add(w * (v(i, j) * u));
+                expected.add(w * (m.row[i] * u) * (m.col[j] * u));
             }
         const double den = expected.value(); // N * sum w E
         if (!(den > 0))

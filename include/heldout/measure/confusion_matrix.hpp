@@ -447,6 +447,9 @@ inline table_margins& margins_scratch() {
 inline void check_table_weight(std::string_view who, const table_view& v, const table_margins& m) {
     if (v.k == 0)
         fail_undefined(who, "no observations");
+    // First: an overflowed compensated sum reads NaN (inf - inf in its carry), not > 0.
+    if (!(m.total <= std::numeric_limits<double>::max()))
+        fail(who, "weights", "the total weight overflows double (beyond 1.8e308): scale the weights down");
     if (!(m.total > 0))
         fail_undefined(who, "total weight is zero");
 }

@@ -12,11 +12,16 @@
 //
 // Clipping policy (member eps, default 0):
 //  * eps = 0 (the default): no clipping. A row whose true class has probability exactly 0
-//    has an infinite loss, and value() is +infinity (the true value of the log score, not
-//    a NaN); rows of weight 0 never count.
+//    (binary: p = 0 with truth 1, or p = 1 with truth 0) would have an infinite loss, and a
+//    mean of +infinity says nothing about the rest of the rows: add() and add_one() throw
+//    heldout::input_error naming the row (argument 'prediction', its index) and the clipping
+//    option, whatever the row's weight, and leave the state unchanged. Such probabilities
+//    come from hard 0/1 predictions or from rounding.
 //  * 0 < eps < 1/2: p is replaced by min(max(p, eps), 1 - eps) before the log (binary),
-//    and p_{i, y_i} by the same clamp (multiclass; rows are not renormalised). eps changes
-//    results a great deal when p = 0 occurs; report it beside the value.
+//    and p_{i, y_i} by the same clamp (multiclass; rows are not renormalised). This is how
+//    hard 0/1 probabilities are scored knowingly; common practice is eps = 1e-15, i.e.
+//    clipping to [1e-15, 1 - 1e-15]. eps changes results a great deal when p = 0 occurs;
+//    report it beside the value.
 // Binary rows are computed in one vectorised pass (detail/fast_log.hpp, < 1 ulp; float
 // predictions take the log in float, < 1 float ulp, and sum in double), with an AVX2
 // clone chosen at run time on x86-64 giving bit-identical results, and on CPUs with
@@ -43,10 +48,23 @@ struct cross_entropy;
 }
 namespace detail {
 
+/// The message for a row whose true class has probability 0 (log loss infinite without eps).
+[[noreturn]] inline void fail_infinite_log_loss(std::string_view who, double p, std::size_t i) {
+    fail_at(who, "prediction",
+            "probability " + number_text(p) +
+                " leaves the true class probability 0, so its log loss is infinite; to score hard 0/1 "
+                "probabilities knowingly, set the clipping option eps (common practice: eps = 1e-15, "
+                "clipping to [1e-15, 1 - 1e-15])",
+            i);
+}
+
 /// -log p_y for one binary row, in the form binary_pass wants.
 template <class T>
 struct log_loss_term : binary_probability_term_base {
-    static constexpr bool infinite_ok = true;
+    // An infinite term (p = 0 for truth 1, p = 1 for truth 0, no clipping) is an error, found
+    // on the pass's exact path only: such rows are outside [lo, hi], so their chunk is redone
+    // element by element, which calls report() with the row's index.
+    static constexpr bool infinite_ok = false;
     static constexpr bool wide_pass = true; // one log a row: see detail/pointwise_pass.hpp
     T lo; // rows with p < lo or p > hi take the exact path: the clip limits in T, and 0
     T hi; // and 1 themselves (p = 0 for y = 1 would make the log infinite)
@@ -62,6 +80,9 @@ struct log_loss_term : binary_probability_term_base {
     // that passes has q = p or 1 - p normal: one range check covers the log's domain too.
     HELDOUT_DETAIL_INLINE same_width_uint<T> flag(T, T p) const noexcept { return outside_bits(p, lo, hi); }
     double exact(double y, double p) const noexcept { return log_loss_exact(y, p, eps); }
+    [[noreturn]] void report(std::string_view who, double, double p, std::size_t i) const {
+        fail_infinite_log_loss(who, p, i);
+    }
 
     static double log_loss_exact(double y, double p, double eps) noexcept {
         const double c = p < eps ? eps : (p > 1.0 - eps ? 1.0 - eps : p);
@@ -99,7 +120,13 @@ struct cross_entropy_policy {
         t.eps = eps;
         return t;
     }
-    double exact(double y, double p) const noexcept { return log_loss_term<double>::log_loss_exact(y, p, eps); }
+    /// One row (add_one): an infinite loss is refused as in add().
+    double exact(double y, double p) const {
+        const double v = log_loss_term<double>::log_loss_exact(y, p, eps);
+        if (v == std::numeric_limits<double>::infinity())
+            fail_infinite_log_loss("measure " + std::string(name), p, 0);
+        return v;
+    }
     bool operator==(const cross_entropy_policy&) const = default;
     measure::cross_entropy measure() const;
     void validate(std::string_view who) const {
@@ -232,28 +259,26 @@ private:
         detail::check_probability_rows(who(), "prediction", rows);
         detail::check_labels(who(), "truth", t, rows.cols);
         detail::compensated_sum loss, weight;
-        double inf_w = 0;
         for (std::size_t i = 0; i < t.size(); ++i) {
             const double wi = weighted ? static_cast<double>(w[i]) : 1.0;
             const double p = static_cast<double>(rows(i, static_cast<std::size_t>(t[i])));
             const double c = p < eps_ ? eps_ : (p > 1.0 - eps_ ? 1.0 - eps_ : p);
             const double l = -std::log(c);
+            if (l == std::numeric_limits<double>::infinity())
+                detail::fail_infinite_log_loss(who(), p, i); // see the header: clip with eps
             weight.add(wi);
-            if (wi > 0 && l == std::numeric_limits<double>::infinity())
-                inf_w += wi;
-            else if (wi > 0)
+            if (wi > 0)
                 loss.add(wi * l);
         }
         loss_.merge(loss);
         weight_.merge(weight);
-        infinite_weight_ += inf_w;
         count_ += t.size();
     }
 
     double eps_ = 0.0;
     detail::compensated_sum loss_{};
     detail::compensated_sum weight_{};
-    double infinite_weight_ = 0.0;
+    double infinite_weight_ = 0.0; // 0: rows of infinite loss are refused (kept in the layout)
     std::uint64_t count_ = 0;
 };
 

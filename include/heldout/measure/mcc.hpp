@@ -11,7 +11,8 @@
 //   R_K = (c s - sum_k p_k t_k) / sqrt((s^2 - sum_k p_k^2)(s^2 - sum_k t_k^2)),
 // which equals the binary form at k = 2. The denominator is built from products of
 // doubles, each factor written as a sum of non-negative terms (s^2 - sum t_k^2 =
-// sum_k t_k (s - t_k)), so counts of any size neither overflow nor cancel. When a margin
+// sum_k t_k (s - t_k)), so counts of any size neither overflow nor cancel; the products are
+// formed in units of the total weight, so any scale of the weights gives the same value. When a margin
 // is empty (all truth, or all predictions, in one class) the value is 0/0: undefined_error.
 #pragma once
 
@@ -49,9 +50,13 @@ struct mcc {
     /// The value from a table and its margins; `who` names the measure in messages.
     double from_view(const detail::table_view& v, const detail::table_margins& m, std::string_view who) const {
         detail::check_table_weight(who, v, m);
+        // Every cell and margin in units of the total weight (a power of two, exact): the
+        // products below neither overflow nor underflow at any scale of the weights, and the
+        // ratio keeps every bit.
+        const double u = detail::unit_scale(m.total);
         if (v.k == 2) {
-            const double tp = v(1, 1), tn = v(0, 0), fp = v(0, 1), fn = v(1, 0);
-            const double pp = m.col[1], pn = m.col[0], ap = m.row[1], an = m.row[0];
+            const double tp = v(1, 1) * u, tn = v(0, 0) * u, fp = v(0, 1) * u, fn = v(1, 0) * u;
+            const double pp = m.col[1] * u, pn = m.col[0] * u, ap = m.row[1] * u, an = m.row[0] * u;
             if (!(pp > 0))
                 detail::fail_undefined(who, "empty margin: no predicted positive (TP + FP = 0)");
             if (!(pn > 0))
@@ -63,19 +68,20 @@ struct mcc {
             return (tp * tn - fp * fn) / (std::sqrt(pp * ap) * std::sqrt(pn * an));
         }
         // Gorodkin's R_K; every factor of the denominator is a sum of non-negative terms.
-        const double s = m.total;
+        const double s = m.total * u;
         detail::compensated_sum pt{}, dp{}, dt{};
         for (std::size_t k = 0; k < v.k; ++k) {
-            pt.add(m.col[k] * m.row[k]);
-            dp.add(m.col[k] * (s - m.col[k]));
-            dt.add(m.row[k] * (s - m.row[k]));
+            const double c = m.col[k] * u, r = m.row[k] * u;
+            pt.add(c * r);
+            dp.add(c * (s - c));
+            dt.add(r * (s - r));
         }
         const double var_p = dp.value(), var_t = dt.value();
         if (!(var_p > 0))
             detail::fail_undefined(who, "empty margin: every prediction is one class (s^2 - sum p_k^2 = 0)");
         if (!(var_t > 0))
             detail::fail_undefined(who, "empty margin: every true label is one class (s^2 - sum t_k^2 = 0)");
-        return (m.trace * s - pt.value()) / (std::sqrt(var_p) * std::sqrt(var_t));
+        return (m.trace * u * s - pt.value()) / (std::sqrt(var_p) * std::sqrt(var_t));
     }
 
     template <class F>

@@ -31,10 +31,14 @@
 #include <heldout/detail/validate.hpp>
 #include <heldout/loss/squared.hpp>
 
+#include <algorithm>
 #include <array>
+#include <cmath>
 #include <cstdint>
+#include <span>
 #include <string>
 #include <type_traits>
+#include <vector>
 
 HELDOUT_NAMESPACE_BEGIN
 namespace measure {
@@ -119,8 +123,14 @@ public:
         const double v = loss_.value(y, f);
         if (!std::isfinite(v))
             term.report(who(), y, f, 0);
-        loss_sum_.add(w * v);
-        weight_sum_.add(w);
+        // A weight far from 1 is kept in units of its own power of two (see add_impl).
+        const std::int32_t unit =
+            ordinary_weight(w) ? 0 : static_cast<std::int32_t>(-std::ilogb(detail::unit_scale(w)));
+        const double ws = unit == 0 ? w : w * detail::unit_scale(w);
+        detail::pass_totals one;
+        one.loss.add(ws * v);
+        one.weight.add(ws);
+        combine(one, unit);
         ++count_;
     }
 
@@ -130,8 +140,10 @@ public:
             detail::fail_state(who(), "other",
                                "cannot merge " + o.measure().name() + " into " + measure().name() +
                                    ": the loss parameters differ");
-        loss_sum_.merge(o.loss_sum_);
-        weight_sum_.merge(o.weight_sum_);
+        detail::pass_totals other;
+        other.loss = o.loss_sum_;
+        other.weight = o.weight_sum_;
+        combine(other, o.unit_);
         count_ += o.count_;
     }
 
@@ -147,11 +159,12 @@ public:
     void reset() noexcept {
         loss_sum_.reset();
         weight_sum_.reset();
+        unit_ = 0;
         count_ = 0;
     }
 
     std::uint64_t count() const noexcept { return count_; }
-    double total_weight() const noexcept { return weight_sum_.value(); }
+    double total_weight() const noexcept { return std::ldexp(weight_sum_.value(), unit_); }
     const L& loss() const noexcept { return loss_; }
     /// The measure this state belongs to (its parameters included).
     mean_loss<L> measure() const { return mean_loss<L>{loss_}; }
@@ -166,6 +179,7 @@ public:
         }
         loss_sum_.visit_state(f);
         weight_sum_.visit_state(f);
+        f(unit_);
         f(count_);
     }
     template <class F>
@@ -174,6 +188,7 @@ public:
             f(loss_);
         loss_sum_.visit_state(f);
         weight_sum_.visit_state(f);
+        f(unit_);
         f(count_);
     }
 
@@ -203,15 +218,87 @@ private:
         if constexpr (!std::is_void_v<W>)
             detail::check_same_size(who(), "weights", t.size(), wn);
         detail::pass_totals local; // the state changes only when the whole batch is valid
-        detail::pointwise_pass<W>(who(), detail_mean_loss::loss_term<L>{loss_}, t, p, w, local, which);
-        loss_sum_.merge(local.loss);
-        weight_sum_.merge(local.weight);
+        const detail_mean_loss::loss_term<L> term{loss_};
+        std::int32_t unit = 0;
+        if constexpr (std::is_void_v<W>) {
+            detail::pointwise_pass<W>(who(), term, t, p, w, local, which);
+        } else {
+            // The mean is the same for any common scale of the weights, but the products w L
+            // overflow or underflow (silently losing digits in subnormals) when the weights
+            // are far from 1. Such a batch is taken again with its weights scaled by the power
+            // of two that brings the largest to [1, 2) (exact), its sums kept in that unit. It
+            // is found from the pass's own weight total, or from its overflow error, so
+            // ordinary weights cost nothing more.
+            bool again = false;
+            try {
+                detail::pointwise_pass<W>(who(), term, t, p, w, local, which);
+                again = !ordinary_weight(local.weight.value());
+            } catch (const input_error&) {
+                const std::span<const W> ws(w, wn);
+                detail::check_weights(who(), ws); // a bad weight: the same message as the pass
+                double top = 0;
+                for (const W x : ws)
+                    top = std::max(top, static_cast<double>(x));
+                if (detail::unit_scale(top) == 1.0)
+                    throw; // weights near 1: the error is the data's
+                again = true;
+            }
+            if (again) {
+                double top = 0;
+                for (std::size_t i = 0; i < wn; ++i)
+                    top = std::max(top, static_cast<double>(w[i]));
+                const double scale = detail::unit_scale(top);
+                unit = static_cast<std::int32_t>(-std::ilogb(scale));
+                auto& scaled = scaled_weights();
+                scaled.resize(wn);
+                for (std::size_t i = 0; i < wn; ++i)
+                    scaled[i] = static_cast<double>(w[i]) * scale;
+                local = {};
+                detail::pointwise_pass<double>(who(), term, t, p, scaled.data(), local, which);
+            }
+        }
+        combine(local, unit);
         count_ += t.size();
+    }
+
+    /// A positive weight total (or weight) in [2^-256, 2^256], or zero: its products with
+    /// losses in [2^-766, 2^766] are normal doubles, so it is summed as it is.
+    static bool ordinary_weight(double w) noexcept { return w == 0 || (w >= 0x1p-256 && w <= 0x1p256); }
+
+    /// The scaled weights of a batch taken again (thread scratch: no allocation after the first).
+    static std::vector<double>& scaled_weights() {
+        thread_local std::vector<double> v;
+        return v;
+    }
+
+    /// x 2^k for k <= 0 (exact unless the result is subnormal: a part 2^1000 times lighter).
+    static void shift(detail::compensated_sum& s, std::int64_t k) noexcept {
+        if (k != 0) {
+            s.sum = std::ldexp(s.sum, static_cast<int>(k));
+            s.carry = std::ldexp(s.carry, static_cast<int>(k));
+        }
+    }
+
+    /// Adds totals kept in units of 2^unit, in the larger of the two units.
+    void combine(detail::pass_totals b, std::int32_t unit) {
+        if (b.weight.value() == 0 && b.loss.value() == 0)
+            unit = unit_; // nothing to align (rows of weight 0)
+        else if (weight_sum_.value() == 0 && loss_sum_.value() == 0)
+            unit_ = unit; // nothing kept yet
+        const std::int32_t u = std::max(unit_, unit);
+        shift(loss_sum_, std::int64_t{unit_} - u);
+        shift(weight_sum_, std::int64_t{unit_} - u);
+        shift(b.loss, std::int64_t{unit} - u);
+        shift(b.weight, std::int64_t{unit} - u);
+        unit_ = u;
+        loss_sum_.merge(b.loss);
+        weight_sum_.merge(b.weight);
     }
 
     L loss_{};
     detail::compensated_sum loss_sum_{};
     detail::compensated_sum weight_sum_{};
+    std::int32_t unit_ = 0; // the sums are in units of 2^unit_ (0 unless weights were far from 1)
     std::uint64_t count_ = 0;
 };
 

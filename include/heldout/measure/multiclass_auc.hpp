@@ -96,6 +96,12 @@ public:
         if (n == 0)
             detail::fail_undefined(who(), "no observations");
         const std::size_t k = static_cast<std::size_t>(classes_);
+        // Weights in units of the largest (a power of two, exact): the products of class
+        // weights below neither overflow nor underflow, and the ratios keep every bit.
+        double top = 0;
+        for (double w : weights_)
+            top = std::max(top, w);
+        scale_ = detail::unit_scale(top);
         std::vector<double>& tot = class_weight_;
         tot.assign(k, 0.0);
         for (std::size_t i = 0; i < n; ++i)
@@ -152,7 +158,7 @@ public:
 
 private:
     static std::string_view who() { return "measure multiclass AUC"; }
-    double weight(std::size_t i) const noexcept { return weights_.empty() ? 1.0 : weights_[i]; }
+    double weight(std::size_t i) const noexcept { return weights_.empty() ? 1.0 : weights_[i] * scale_; }
 
     /// d += s, where s may be d itself (a self-merge: insert from its own range is undefined,
     /// so grow d first and copy from its new storage).
@@ -251,6 +257,7 @@ private:
     mutable detail::radix_buffers<std::uint64_t, std::uint32_t> scratch_;
     mutable std::vector<double> class_weight_, pair_u_, below_, group_;
     mutable std::vector<std::uint32_t> touched_;
+    mutable double scale_ = 1; // value()'s unit of weight
 };
 
 /// Multiclass AUC from class-probability rows: Hand & Till M (default) or prevalence-weighted

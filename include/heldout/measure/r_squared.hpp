@@ -10,7 +10,11 @@
 // the minimum and maximum, not through a rounded SST — and with no rows or zero weight.
 // State: weight, mean and centred sum of squares merged by Chan, Golub & LeVeque (1979,
 // "Updating formulae and a pairwise algorithm for computing sample variances"); each
-// batch is centred in two passes with compensated sums; SSE is a compensated sum.
+// batch (add_one: a batch of one row) is centred in two passes with compensated sums; SSE
+// is a compensated sum. The mean is kept as an unevaluated sum of two doubles, so merged
+// shards equal the whole to about 1e-15 even when the truth has a large common offset
+// (1e12 + noise); weights, SSE and the sum of squares are kept in units of a power of two
+// taken from the largest weight, so any common scale of the weights gives the same value.
 #pragma once
 
 #include <heldout/core/measure.hpp>
@@ -18,18 +22,25 @@
 #include <heldout/detail/sum.hpp>
 #include <heldout/detail/validate.hpp>
 
+#include <algorithm>
 #include <cmath>
 #include <cstdint>
 #include <limits>
+#include <span>
 #include <string>
 #include <string_view>
+#include <utility>
 
 HELDOUT_NAMESPACE_BEGIN
 namespace measure {
 
-/// Running state of r_squared.
 struct r_squared;
 
+/// Running state of r_squared.
+///
+/// State (visit_state order): count, unit (the exponent e of the weight unit 2^e), weight
+/// (sum of weights / 2^e), mean (as an unevaluated sum mean + mean_low), m2 (centred sum of
+/// squares / 2^e), SSE (compensated, / 2^e), the smallest and largest truth of positive weight.
 class r_squared_accumulator {
 public:
     /// The measure this state belongs to.
@@ -38,7 +49,8 @@ public:
     template <value_range T, real_range P>
     void add(const T& truth, const P& prediction) {
         auto [t, p] = views(truth, prediction);
-        add_batch(t, p, [](std::size_t) { return 1.0; });
+        add_rows(
+            t, p, [](std::size_t) { return 1.0; }, false);
     }
     template <value_range T, real_range P, weight_range W>
     void add(const T& truth, const P& prediction, const W& weights) {
@@ -46,29 +58,20 @@ public:
         auto [t, p] = views(truth, prediction);
         detail::check_same_size(who(), "weights", t.size(), w.size());
         detail::check_weights(who(), w);
-        add_batch(t, p, [&](std::size_t i) { return static_cast<double>(w[i]); });
+        add_rows(
+            t, p, [&](std::size_t i) { return static_cast<double>(w[i]); }, true);
     }
     void add_one(double y, double f, double w = 1.0) {
         detail::check_finite_at(who(), "truth", y, 0);
         detail::check_finite_at(who(), "prediction", f, 0);
         if (!std::isfinite(w) || w < 0)
             detail::fail(who(), "weights", "weight must be finite and non-negative");
-        ++count_;
-        if (!(w > 0))
-            return;
-        // West (1979) weighted update.
-        const double wn = weight_ + w;
-        const double d = y - mean_;
-        mean_ += (w / wn) * d;
-        m2_ += w * d * (y - mean_);
-        weight_ = wn;
-        sse_.add(w * (y - f) * (y - f));
-        ymin_ = y < ymin_ ? y : ymin_;
-        ymax_ = y > ymax_ ? y : ymax_;
+        add_rows(
+            std::span<const double>(&y, 1), std::span<const double>(&f, 1), [w](std::size_t) { return w; }, w != 1.0);
     }
     void merge(const r_squared_accumulator& o) {
         count_ += o.count_;
-        combine(o.weight_, o.mean_, o.m2_, o.sse_, o.ymin_, o.ymax_);
+        combine(part{o.unit_, o.weight_, o.mean_, o.mean_low_, o.m2_, o.sse_, o.ymin_, o.ymax_});
     }
     double value() const {
         if (count_ == 0)
@@ -81,7 +84,8 @@ public:
     }
     void reset() noexcept {
         count_ = 0;
-        weight_ = mean_ = m2_ = 0;
+        unit_ = 0;
+        weight_ = mean_ = mean_low_ = m2_ = 0;
         sse_.reset();
         ymin_ = std::numeric_limits<double>::infinity();
         ymax_ = -std::numeric_limits<double>::infinity();
@@ -90,8 +94,10 @@ public:
     template <class F>
     void visit_state(F&& f) {
         f(count_);
+        f(unit_);
         f(weight_);
         f(mean_);
+        f(mean_low_);
         f(m2_);
         sse_.visit_state(f);
         f(ymin_);
@@ -100,8 +106,10 @@ public:
     template <class F>
     void visit_state(F&& f) const {
         f(count_);
+        f(unit_);
         f(weight_);
         f(mean_);
+        f(mean_low_);
         f(m2_);
         sse_.visit_state(f);
         f(ymin_);
@@ -110,6 +118,15 @@ public:
 
 private:
     static std::string_view who() { return "measure R-squared"; }
+
+    /// The summary of a set of rows (one batch, or another accumulator): weights, m2 and SSE
+    /// in units of 2^unit, the mean as hi + low.
+    struct part {
+        std::int32_t unit = 0;
+        double weight = 0, mean = 0, mean_low = 0, m2 = 0;
+        detail::compensated_sum sse{};
+        double lo = std::numeric_limits<double>::infinity(), hi = -std::numeric_limits<double>::infinity();
+    };
 
     template <class T, class P>
     static auto views(const T& truth, const P& prediction) {
@@ -122,57 +139,101 @@ private:
         return std::pair{t, p};
     }
 
+    /// One batch: weights scaled by a power of two that brings the largest to [1, 2) (exact),
+    /// so that no scale of the weights overflows or underflows the sums; then the corrected
+    /// two-pass centring (compensated sums) about the batch's rounded mean m, whose rounding
+    /// c / W (c = sum w (y - m)) is kept as the low part of the mean: merges then see the
+    /// exact mean even when the truth has a large common offset.
     template <class T, class P, class Wf>
-    void add_batch(std::span<const T> t, std::span<const P> p, Wf weight) {
-        detail::compensated_sum w, wy, c, m2, sse;
-        double lo = std::numeric_limits<double>::infinity(), hi = -lo;
+    void add_rows(std::span<const T> t, std::span<const P> p, Wf weight, bool weighted) {
+        double top = 1;
+        if (weighted) {
+            top = 0;
+            for (std::size_t i = 0; i < t.size(); ++i)
+                top = std::max(top, weight(i));
+        }
+        const double scale = detail::unit_scale(top);
+        part b;
+        b.unit = static_cast<std::int32_t>(-std::ilogb(scale));
+        detail::compensated_sum w, wy, c, m2;
         for (std::size_t i = 0; i < t.size(); ++i) {
-            const double wi = weight(i), y = static_cast<double>(t[i]);
+            const double wi = weight(i) * scale, y = static_cast<double>(t[i]);
             w.add(wi);
             wy.add(wi * y);
             if (wi > 0) {
-                lo = y < lo ? y : lo;
-                hi = y > hi ? y : hi;
+                b.lo = y < b.lo ? y : b.lo;
+                b.hi = y > b.hi ? y : b.hi;
             }
         }
-        const double wb = w.value();
-        const double mean = wb > 0 ? wy.value() / wb : 0.0;
+        b.weight = w.value();
+        b.mean = b.weight > 0 ? wy.value() / b.weight : 0.0;
         for (std::size_t i = 0; i < t.size(); ++i) {
-            const double wi = weight(i), y = static_cast<double>(t[i]), e = y - static_cast<double>(p[i]);
-            const double d = y - mean;
+            const double wi = weight(i) * scale, y = static_cast<double>(t[i]), e = y - static_cast<double>(p[i]);
+            const double d = y - b.mean;
             c.add(wi * d);
             m2.add(wi * d * d);
-            sse.add(wi * e * e);
+            b.sse.add(wi * e * e);
         }
-        if (!std::isfinite(sse.value()) || !std::isfinite(m2.value()))
+        if (!std::isfinite(b.sse.value()) || !std::isfinite(m2.value()) || !std::isfinite(b.mean))
             detail::fail(who(), "prediction", "arithmetic overflow (values too large for double)");
-        // Corrected two-pass centring: subtract the rounding left in the mean.
-        const double m2b = wb > 0 ? m2.value() - c.value() * c.value() / wb : 0.0;
+        if (b.weight > 0) {
+            b.mean_low = c.value() / b.weight;
+            b.m2 = m2.value() - c.value() * c.value() / b.weight;
+        }
         count_ += t.size();
-        combine(wb, mean, m2b, sse, lo, hi);
+        combine(b);
     }
 
-    void combine(double wb, double meanb, double m2b, const detail::compensated_sum& sseb, double lo, double hi) {
-        sse_.merge(sseb);
-        ymin_ = lo < ymin_ ? lo : ymin_;
-        ymax_ = hi > ymax_ ? hi : ymax_;
-        if (!(wb > 0))
+    /// x 2^k for k <= 0, exact unless the result is subnormal (a part 2^1000 times lighter).
+    static double down(double x, std::int64_t k) noexcept { return k == 0 ? x : std::ldexp(x, static_cast<int>(k)); }
+    static void down(detail::compensated_sum& s, std::int64_t k) noexcept {
+        s.sum = down(s.sum, k);
+        s.carry = down(s.carry, k);
+    }
+
+    /// Chan, Golub & LeVeque (1979) pairwise update, in the larger of the two weight units,
+    /// with the mean difference d taken from both parts of both means.
+    void combine(part b) {
+        ymin_ = b.lo < ymin_ ? b.lo : ymin_;
+        ymax_ = b.hi > ymax_ ? b.hi : ymax_;
+        if (!(b.weight > 0))
             return;
         if (!(weight_ > 0)) {
-            weight_ = wb;
-            mean_ = meanb;
-            m2_ = m2b;
+            unit_ = b.unit;
+            weight_ = b.weight;
+            mean_ = b.mean;
+            mean_low_ = b.mean_low;
+            m2_ = b.m2;
+            sse_ = b.sse;
             return;
         }
-        const double wn = weight_ + wb;
-        const double d = meanb - mean_;
-        mean_ += d * (wb / wn);
-        m2_ += m2b + d * d * (weight_ * wb / wn);
+        const std::int32_t unit = std::max(unit_, b.unit);
+        const std::int64_t mine = std::int64_t{unit_} - unit, theirs = std::int64_t{b.unit} - unit;
+        weight_ = down(weight_, mine);
+        m2_ = down(m2_, mine);
+        down(sse_, mine);
+        b.weight = down(b.weight, theirs);
+        b.m2 = down(b.m2, theirs);
+        down(b.sse, theirs);
+        unit_ = unit;
+        sse_.merge(b.sse);
+        const double wn = weight_ + b.weight;
+        const double d = (b.mean - mean_) + (b.mean_low - mean_low_);
+        const double step = d * (b.weight / wn);
+        // mean + mean_low + step, renormalised (Knuth's two-sum) so that mean_low stays below
+        // half an ulp of mean.
+        const double s = mean_ + step, bb = s - mean_;
+        const double err = (mean_ - (s - bb)) + (step - bb);
+        const double low = mean_low_ + err;
+        mean_ = s + low;
+        mean_low_ = low - (mean_ - s);
+        m2_ += b.m2 + d * d * (weight_ * (b.weight / wn));
         weight_ = wn;
     }
 
     std::uint64_t count_ = 0;
-    double weight_ = 0, mean_ = 0, m2_ = 0;
+    std::int32_t unit_ = 0;
+    double weight_ = 0, mean_ = 0, mean_low_ = 0, m2_ = 0;
     detail::compensated_sum sse_{};
     double ymin_ = std::numeric_limits<double>::infinity();
     double ymax_ = -std::numeric_limits<double>::infinity();

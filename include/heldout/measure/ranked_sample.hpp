@@ -66,11 +66,17 @@ public:
     double auc(std::span<const double> weights_by_row) const {
         detail::check_same_size(who(), "weights_by_row", size(), weights_by_row.size(), "the sample");
         detail::compensated_sum u, below, pos;
-        double gp = 0, gn = 0;
+        double gp = 0, gn = 0, top = 0;
+        for (const double w : weights_by_row)
+            top = w > top ? w : top;
+        // The weights scaled by a power of two (exact) so that the products of weight sums in
+        // u neither overflow nor underflow (see detail::unit_scale); the AUC, a ratio, keeps
+        // every bit.
+        const double scale = detail::unit_scale(top);
         bool bad = false;
         const std::size_t n = size();
         for (std::size_t i = 0; i < n; ++i) {
-            const double w = weights_by_row[rows_[i]];
+            const double w = weights_by_row[rows_[i]] * scale;
             bad |= !(w >= 0 && w <= std::numeric_limits<double>::max());
             const std::uint8_t f = flags_[i];
             ((f & 1u) ? gp : gn) += w;
