@@ -7,6 +7,11 @@ function(heldout_dev_target target)
         if(HELDOUT_WERROR)
             target_compile_options(${target} PRIVATE -Werror)
         endif()
+        # ccache caches translation units that use a precompiled header only when clang leaves
+        # the build time out of it (and CCACHE_SLOPPINESS has pch_defines,time_macros; .ci/run)
+        if(CMAKE_CXX_COMPILER_ID STREQUAL "Clang" AND CMAKE_CXX_COMPILER_LAUNCHER MATCHES "ccache")
+            target_compile_options(${target} PRIVATE -Xclang -fno-pch-timestamp)
+        endif()
         if(HELDOUT_SANITIZE)
             target_compile_options(${target} PRIVATE -fsanitize=address,undefined -fno-sanitize-recover=all
                                                      -fno-omit-frame-pointer)

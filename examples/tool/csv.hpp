@@ -2,7 +2,7 @@
 //
 //   heldout_tool::csv_table t = heldout_tool::parse_csv(text);    // or read_csv_file(path), "-" = stdin
 //   std::size_t y = t.column("failed");                          // csv_error if absent
-//   double s = t.number(row, t.column("score"));                 // std::from_chars
+//   double s = t.number(row, t.column("score"));                 // from_chars
 //
 // The format is RFC 4180: records end with CRLF or LF (the last one may end the file),
 // fields are separated by commas, a field that starts with a double quote is quoted and
@@ -19,10 +19,15 @@
 
 #include <cerrno>
 #include <charconv>
+#include <clocale>
 #include <cmath>
 #include <cstddef>
 #include <cstdio>
+#include <cstdlib>
 #include <cstring>
+#include <fstream>
+#include <iterator>
+#include <sstream>
 #include <stdexcept>
 #include <string>
 #include <string_view>
@@ -31,6 +36,83 @@
 #include <vector>
 
 namespace heldout_tool {
+
+namespace detail {
+/// std::from_chars for a double (general format), the same grammar, result and errors, for
+/// standard libraries without it: libc++ before LLVM 20 has no floating-point from_chars
+/// (libstdc++ has it since GCC 11). The longest prefix that from_chars would read is found
+/// here and its conversion is left to the C library's strtod_l in the "C" locale (correctly
+/// rounded, and deaf to the process locale, as from_chars is). As in libstdc++, a value that
+/// overflows or rounds to zero is result_out_of_range and leaves x alone; a subnormal is kept.
+inline std::from_chars_result from_chars_by_strtod(const char* first, const char* last, double& x) {
+    const char* p = first;
+    const bool negative = p != last && *p == '-';
+    p += negative;
+    auto is_digit = [](char c) { return c >= '0' && c <= '9'; };
+    auto word = [&](const char* at, std::string_view w) { // ASCII, case-insensitive
+        if (static_cast<std::size_t>(last - at) < w.size())
+            return false;
+        for (std::size_t i = 0; i < w.size(); ++i)
+            if ((at[i] | 0x20) != w[i])
+                return false;
+        return true;
+    };
+    if (word(p, "inf")) {
+        x = negative ? -HUGE_VAL : HUGE_VAL;
+        return {word(p, "infinity") ? p + 8 : p + 3, std::errc{}};
+    }
+    if (word(p, "nan")) {
+        const char* end = p + 3;
+        if (end != last && *end == '(') { // nan(n-char-sequence)
+            const char* q = end + 1;
+            while (q != last && (is_digit(*q) || ((*q | 0x20) >= 'a' && (*q | 0x20) <= 'z') || *q == '_'))
+                ++q;
+            if (q != last && *q == ')')
+                end = q + 1;
+        }
+        x = negative ? -std::nan("") : std::nan("");
+        return {end, std::errc{}};
+    }
+    auto digits = [&](const char* q) {
+        while (q != last && is_digit(*q))
+            ++q;
+        return q;
+    };
+    const char* q = digits(p);
+    bool any = q != p;
+    if (q != last && *q == '.') {
+        const char* after = digits(q + 1);
+        any = any || after != q + 1;
+        q = after;
+    }
+    if (!any)
+        return {first, std::errc::invalid_argument};
+    if (q != last && (*q == 'e' || *q == 'E')) {
+        const char* e = q + 1;
+        if (e != last && (*e == '+' || *e == '-'))
+            ++e;
+        if (digits(e) != e) // an exponent without digits is not part of the number
+            q = digits(e);
+    }
+    static const locale_t c_locale = newlocale(LC_ALL_MASK, "C", locale_t{});
+    const std::string text(first, q);
+    errno = 0;
+    const double v = strtod_l(text.c_str(), nullptr, c_locale);
+    if (errno == ERANGE && (v == 0 || std::isinf(v)))
+        return {q, std::errc::result_out_of_range};
+    x = v;
+    return {q, std::errc{}};
+}
+} // namespace detail
+
+/// std::from_chars for a double where the standard library has it, else the same by strtod_l.
+inline std::from_chars_result double_from_chars(const char* first, const char* last, double& x) {
+#if defined(__cpp_lib_to_chars) && __cpp_lib_to_chars >= 201611L
+    return std::from_chars(first, last, x);
+#else
+    return detail::from_chars_by_strtod(first, last, x);
+#endif
+}
 
 /// A problem in the file's content, with its position (column 0: the line as a whole).
 class csv_error : public std::runtime_error {
@@ -71,7 +153,7 @@ public:
                "')";
     }
 
-    /// The cell as a finite double (std::from_chars); csv_error naming line and column otherwise.
+    /// The cell as a finite double (std::from_chars, double_from_chars); csv_error naming line and column otherwise.
     double number(std::size_t r, std::size_t c) const {
         std::string_view s = cell(r, c);
         while (!s.empty() && (s.front() == ' ' || s.front() == '\t'))
@@ -84,7 +166,7 @@ public:
         if (digits.size() > 1 && digits.front() == '+' && digits[1] != '-')
             digits.remove_prefix(1);
         double x = 0;
-        const auto res = std::from_chars(digits.data(), digits.data() + digits.size(), x);
+        const auto res = double_from_chars(digits.data(), digits.data() + digits.size(), x);
         if (res.ec == std::errc::result_out_of_range)
             throw csv_error(line_of(r), c + 1,
                             where(r, c) + ": '" + printable(s) + "' is out of the range of a double");

@@ -4,8 +4,8 @@
 //   static_assert(heldout::outer_measure<heldout::measure::mse>);
 #pragma once
 
-#include <heldout/core/config.hpp>
 #include <heldout/core/capabilities.hpp>
+#include <heldout/core/config.hpp>
 #include <heldout/core/error.hpp>
 #include <heldout/core/kinds.hpp>
 #include <heldout/core/loss.hpp>

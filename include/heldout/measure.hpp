@@ -29,7 +29,7 @@
 #include <heldout/measure/binned_auc.hpp>
 #include <heldout/measure/multiclass_auc.hpp>
 #include <heldout/measure/partial_auc.hpp>
-#include <heldout/measure/roc_points.hpp>
 #include <heldout/measure/ranked_sample.hpp>
+#include <heldout/measure/roc_points.hpp>
 #include <heldout/measure/threshold.hpp>
 #include <heldout/measure/thresholded.hpp>

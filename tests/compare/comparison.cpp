@@ -153,12 +153,13 @@ TEST_SUITE("compare/comparison") {
         CHECK_FALSE(f.has_interval());
         // 5x2cv on other splits is refused.
         auto [c, e] = with_differences(heldout::repeated_kfold{.folds = 5, .repeats = 2, .seed = 1}.splits(60), d);
-        CHECK_THROWS_WITH_AS(heldout::compare(c, e, mean_prediction{}, heldout::paired::five_by_two_t),
-                             "heldout::compare: argument 'method': paired::five_by_two_t (5x2cv t (Dietterich)) does not "
-                             "apply to measure mean prediction: it needs the 10 splits of heldout::five_by_two (5 repeats of "
-                             "2-fold, in order). Methods that apply here: paired::corrected_t (the default here), "
-                             "paired::naive_t",
-                             heldout::input_error);
+        CHECK_THROWS_WITH_AS(
+            heldout::compare(c, e, mean_prediction{}, heldout::paired::five_by_two_t),
+            "heldout::compare: argument 'method': paired::five_by_two_t (5x2cv t (Dietterich)) does not "
+            "apply to measure mean prediction: it needs the 10 splits of heldout::five_by_two (5 repeats of "
+            "2-fold, in order). Methods that apply here: paired::corrected_t (the default here), "
+            "paired::naive_t",
+            heldout::input_error);
     }
     TEST_CASE("different splits are refused, naming the first mismatch") {
         const std::vector<double> d(10, 0.0);
@@ -236,13 +237,14 @@ TEST_SUITE("compare/comparison") {
         CHECK_FALSE(c.has_interval());
         CHECK(c.difference == doctest::Approx(heldout::evaluate(err, ty, ta) - heldout::evaluate(err, ty, tb)));
         // A split method on one test set is refused.
-        CHECK_THROWS_WITH_AS(heldout::compare(a, b, err, heldout::paired::corrected_t),
-                             "heldout::compare: argument 'method': paired::corrected_t (corrected t) does not apply to "
-                             "measure classification error: it works over several splits, and one test set was recorded. "
-                             "Methods that apply here: paired::mcnemar_exact, paired::mcnemar_mid_p (the default here), "
-                             "paired::mcnemar_chi_squared, paired::mcnemar_corrected, paired::bootstrap_percentile, "
-                             "paired::bootstrap_bca",
-                             heldout::input_error);
+        CHECK_THROWS_WITH_AS(
+            heldout::compare(a, b, err, heldout::paired::corrected_t),
+            "heldout::compare: argument 'method': paired::corrected_t (corrected t) does not apply to "
+            "measure classification error: it works over several splits, and one test set was recorded. "
+            "Methods that apply here: paired::mcnemar_exact, paired::mcnemar_mid_p (the default here), "
+            "paired::mcnemar_chi_squared, paired::mcnemar_corrected, paired::bootstrap_percentile, "
+            "paired::bootstrap_bca",
+            heldout::input_error);
     }
     TEST_CASE("one test set: paired DeLong and paired bootstrap from the predictions") {
         std::mt19937_64 gen(11); // test data only
@@ -299,12 +301,13 @@ TEST_SUITE("compare/comparison") {
         const auto rb = heldout::paired_bootstrap_bca(auc, y, sa, sb, {.replicates = 500, .seed = 3});
         CHECK(*bca.lower == doctest::Approx(rb.lower).epsilon(1e-12));
         CHECK(*bca.upper == doctest::Approx(rb.upper).epsilon(1e-12));
-        CHECK_THROWS_WITH_AS(heldout::compare(auc, y, sa, sb, heldout::paired::mcnemar_exact),
-                             "heldout::compare: argument 'method': paired::mcnemar_exact (McNemar exact) does not apply to "
-                             "measure AUC: the measure is not a mean of per-row values (it does not offer cap::row_losses). "
-                             "Methods that apply here: paired::delong (the default here), paired::bootstrap_percentile, "
-                             "paired::bootstrap_bca",
-                             heldout::input_error);
+        CHECK_THROWS_WITH_AS(
+            heldout::compare(auc, y, sa, sb, heldout::paired::mcnemar_exact),
+            "heldout::compare: argument 'method': paired::mcnemar_exact (McNemar exact) does not apply to "
+            "measure AUC: the measure is not a mean of per-row values (it does not offer cap::row_losses). "
+            "Methods that apply here: paired::delong (the default here), paired::bootstrap_percentile, "
+            "paired::bootstrap_bca",
+            heldout::input_error);
     }
     TEST_CASE("one test set from aggregators: the bootstrap of a pointwise measure reads the per-row losses") {
         std::mt19937_64 gen(17); // test data only
@@ -343,12 +346,13 @@ TEST_SUITE("compare/comparison") {
         CHECK(heldout_test::close(*cb.lower, rb.lower, 1e-12));
         CHECK(heldout_test::close(*cb.upper, rb.upper, 1e-12));
         CHECK(heldout::compare(a, b, mse).method == heldout::paired::method_id::bootstrap_percentile);
-        CHECK_THROWS_WITH_AS(heldout::compare(a, b, mse, heldout::paired::delong),
-                             "heldout::compare: argument 'method': paired::delong (paired DeLong) does not apply to measure "
-                             "MSE: the measure has no DeLong components (it is not a two-sample U statistic like the ROC "
-                             "AUC). Methods that apply here: paired::bootstrap_percentile (the default here), "
-                             "paired::bootstrap_bca",
-                             heldout::input_error);
+        CHECK_THROWS_WITH_AS(
+            heldout::compare(a, b, mse, heldout::paired::delong),
+            "heldout::compare: argument 'method': paired::delong (paired DeLong) does not apply to measure "
+            "MSE: the measure has no DeLong components (it is not a two-sample U statistic like the ROC "
+            "AUC). Methods that apply here: paired::bootstrap_percentile (the default here), "
+            "paired::bootstrap_bca",
+            heldout::input_error);
     }
     TEST_CASE("printing, CSV and JSON") {
         const std::vector<double> d{0.02, 0.05, -0.01, 0.03, 0.04, 0.00, 0.06, 0.02, 0.01, 0.03};

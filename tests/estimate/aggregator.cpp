@@ -226,37 +226,42 @@ TEST_SUITE("estimate/aggregator") {
             heldout::input_error);
         CHECK_THROWS_AS((void)cv.estimate(measure::classification_error{}, ci::t), heldout::input_error);
         CHECK_THROWS_AS((void)cv.estimate(measure::classification_error{}, ci::bca), heldout::input_error);
-        CHECK_THROWS_WITH_AS((void)cv.estimate(measure::classification_error{}, ci::bootstrap_632_plus),
-                             "heldout::aggregator::estimate: argument 'method': ci::bootstrap_632_plus (.632+ bootstrap) "
-                             "does not apply to measure classification error: it combines out-of-bag errors of bootstrap "
-                             "samples, and the splits are not bootstrap samples; it needs the apparent result "
-                             "(record_apparent: the model fit on all rows, scored on them). Methods that apply here: "
-                             "ci::corrected_t (the default here), ci::naive_t",
-                             heldout::input_error);
+        CHECK_THROWS_WITH_AS(
+            (void)cv.estimate(measure::classification_error{}, ci::bootstrap_632_plus),
+            "heldout::aggregator::estimate: argument 'method': ci::bootstrap_632_plus (.632+ bootstrap) "
+            "does not apply to measure classification error: it combines out-of-bag errors of bootstrap "
+            "samples, and the splits are not bootstrap samples; it needs the apparent result "
+            "(record_apparent: the model fit on all rows, scored on them). Methods that apply here: "
+            "ci::corrected_t (the default here), ci::naive_t",
+            heldout::input_error);
 
         aggregator one(measure::mse{}, max_error{});
         one.record(a.view(0), gather(y, a.test), gather(f, a.test));
-        CHECK_THROWS_WITH_AS((void)one.estimate(measure::mse{}, ci::corrected_t),
-                             "heldout::aggregator::estimate: argument 'method': ci::corrected_t (corrected t "
-                             "(Nadeau-Bengio)) does not apply to measure MSE: it works over several splits, and one test set "
-                             "was recorded. Methods that apply here: ci::t (the default here), ci::bootstrap_percentile, "
-                             "ci::bca",
-                             heldout::input_error);
-        CHECK_THROWS_WITH_AS((void)one.estimate(measure::mse{}, ci::wilson),
-                             "heldout::aggregator::estimate: argument 'method': ci::wilson (Wilson) does not apply to "
-                             "measure MSE: the per-row values are not all 0 or 1 (not an error rate or accuracy). Methods "
-                             "that apply here: ci::t (the default here), ci::bootstrap_percentile, ci::bca",
-                             heldout::input_error);
-        CHECK_THROWS_WITH_AS((void)one.estimate(max_error{}, ci::t),
-                             "heldout::aggregator::estimate: argument 'method': ci::t (Student t) does not apply to measure "
-                             "max error: the measure is not a mean of per-row values (it does not offer cap::row_losses). "
-                             "Methods that apply here: ci::bootstrap_percentile, ci::bca (the default here)",
-                             heldout::input_error);
-        CHECK_THROWS_WITH_AS((void)one.estimate(measure::mse{}, ci::delong),
-                             "heldout::aggregator::estimate: argument 'method': ci::delong (DeLong) does not apply to "
-                             "measure MSE: the measure has no DeLong components (it is not a two-sample U statistic like the "
-                             "ROC AUC). Methods that apply here: ci::t (the default here), ci::bootstrap_percentile, ci::bca",
-                             heldout::input_error);
+        CHECK_THROWS_WITH_AS(
+            (void)one.estimate(measure::mse{}, ci::corrected_t),
+            "heldout::aggregator::estimate: argument 'method': ci::corrected_t (corrected t "
+            "(Nadeau-Bengio)) does not apply to measure MSE: it works over several splits, and one test set "
+            "was recorded. Methods that apply here: ci::t (the default here), ci::bootstrap_percentile, "
+            "ci::bca",
+            heldout::input_error);
+        CHECK_THROWS_WITH_AS(
+            (void)one.estimate(measure::mse{}, ci::wilson),
+            "heldout::aggregator::estimate: argument 'method': ci::wilson (Wilson) does not apply to "
+            "measure MSE: the per-row values are not all 0 or 1 (not an error rate or accuracy). Methods "
+            "that apply here: ci::t (the default here), ci::bootstrap_percentile, ci::bca",
+            heldout::input_error);
+        CHECK_THROWS_WITH_AS(
+            (void)one.estimate(max_error{}, ci::t),
+            "heldout::aggregator::estimate: argument 'method': ci::t (Student t) does not apply to measure "
+            "max error: the measure is not a mean of per-row values (it does not offer cap::row_losses). "
+            "Methods that apply here: ci::bootstrap_percentile, ci::bca (the default here)",
+            heldout::input_error);
+        CHECK_THROWS_WITH_AS(
+            (void)one.estimate(measure::mse{}, ci::delong),
+            "heldout::aggregator::estimate: argument 'method': ci::delong (DeLong) does not apply to "
+            "measure MSE: the measure has no DeLong components (it is not a two-sample U statistic like the "
+            "ROC AUC). Methods that apply here: ci::t (the default here), ci::bootstrap_percentile, ci::bca",
+            heldout::input_error);
         // a non-pointwise measure on one test set defaults to BCa
         aggregator six(max_error{});
         six.record(complement(6, {0, 1, 2, 3, 4, 5}).view(0), y, f);
@@ -288,11 +293,12 @@ TEST_SUITE("estimate/aggregator") {
         CHECK(agg.size() == 0); // nothing recorded by a failed record
         aggregator labels(measure::classification_error{});
         const std::vector<int> yl{0, 1, 1};
-        CHECK_THROWS_WITH_AS(labels.record(split{{}, test, 0, 0, 0, {}}, yl, y),
-                             "heldout::aggregator::record: argument 'predictions': measure classification error (needs class "
-                             "label predictions and class label truth) cannot score floating-point values against truth "
-                             "given as integral labels",
-                             heldout::input_error);
+        CHECK_THROWS_WITH_AS(
+            labels.record(split{{}, test, 0, 0, 0, {}}, yl, y),
+            "heldout::aggregator::record: argument 'predictions': measure classification error (needs class "
+            "label predictions and class label truth) cannot score floating-point values against truth "
+            "given as integral labels",
+            heldout::input_error);
         agg.record(split{{}, test, 0, 0, 0, {}}, y, y);
         const std::vector<int> yi{1, 2, 3};
         CHECK_THROWS_WITH_AS(agg.record(split{{}, test, 0, 0, 1, {}}, yi, y),
@@ -423,13 +429,14 @@ TEST_SUITE("estimate/aggregator") {
         CHECK(!p.has_interval());
         const auto d = agg.estimate(measure::classification_error{}, ci::bootstrap_632);
         CHECK(d.value == doctest::Approx(0.2948).epsilon(1e-14)); // 0.368 * 0.2 + 0.632 * 0.35
-        CHECK_THROWS_WITH_AS((void)agg.estimate(measure::classification_error{}, ci::corrected_t),
-                             "heldout::aggregator::estimate: argument 'method': ci::corrected_t (corrected t "
-                             "(Nadeau-Bengio)) does not apply to measure classification error: it assumes random train/test "
-                             "splits drawn without replacement, and the splits are not (its variance correction has no "
-                             "justification there). Methods that apply here: ci::naive_t, ci::bootstrap_632, "
-                             "ci::bootstrap_632_plus (the default here)",
-                             heldout::input_error);
+        CHECK_THROWS_WITH_AS(
+            (void)agg.estimate(measure::classification_error{}, ci::corrected_t),
+            "heldout::aggregator::estimate: argument 'method': ci::corrected_t (corrected t "
+            "(Nadeau-Bengio)) does not apply to measure classification error: it assumes random train/test "
+            "splits drawn without replacement, and the splits are not (its variance correction has no "
+            "justification there). Methods that apply here: ci::naive_t, ci::bootstrap_632, "
+            "ci::bootstrap_632_plus (the default here)",
+            heldout::input_error);
         CHECK_THROWS_AS((void)agg.estimate(measure::accuracy{}, ci::bootstrap_632), heldout::input_error);
         // squared error: gamma by the closed form, .632 by the same weights
         aggregator sq(measure::mse{});

@@ -2,6 +2,8 @@
 // json module, run live) and the CSV layout.
 #include <heldout/estimate/estimate.hpp>
 
+#include "support/parse.hpp"
+
 #include <doctest/doctest.h>
 
 #include <charconv>
@@ -38,7 +40,7 @@ estimate cv_estimate() {
 
 double parse(const std::string& s) {
     double x = 0;
-    const auto r = std::from_chars(s.data(), s.data() + s.size(), x);
+    const auto r = heldout_test::double_from_chars(s.data(), s.data() + s.size(), x);
     REQUIRE(r.ec == std::errc{});
     return x;
 }

@@ -85,10 +85,11 @@ TEST_SUITE("measure/average_precision") {
         CHECK(a.value() == evaluate(average_precision{}, y, s));
         auto t1 = auprc{}.accumulator();
         auto t2 = auprc{pr_start::first_precision}.accumulator();
-        CHECK_THROWS_WITH_AS(t1.merge(t2),
-                             "measure PR AUC (trapezoidal): argument 'other': cannot merge a state of PR AUC (trapezoidal, "
-                             "from the first precision) into one of PR AUC (trapezoidal): the parameters differ",
-                             heldout::input_error);
+        CHECK_THROWS_WITH_AS(
+            t1.merge(t2),
+            "measure PR AUC (trapezoidal): argument 'other': cannot merge a state of PR AUC (trapezoidal, "
+            "from the first precision) into one of PR AUC (trapezoidal): the parameters differ",
+            heldout::input_error);
         std::vector<int> codes;
         t2.visit_state([&](const auto& m) {
             if constexpr (std::is_same_v<std::remove_cvref_t<decltype(m)>, std::uint8_t>)

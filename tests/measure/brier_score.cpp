@@ -126,11 +126,10 @@ TEST_SUITE("measure/brier_score") {
                              heldout::undefined_error);
         const std::vector<double> bad_rows{0.5, 0.4, 0.2, 0.8};
         const std::vector<int> lab{0, 1};
-        CHECK_THROWS_WITH_AS(
-            evaluate(multiclass_brier_score{}, lab, heldout::rows(bad_rows, 2)),
-            "measure multiclass Brier score: argument 'prediction': row sums to 0.9, not 1 "
-            "(tolerance 1e-06) at index 0",
-            heldout::input_error);
+        CHECK_THROWS_WITH_AS(evaluate(multiclass_brier_score{}, lab, heldout::rows(bad_rows, 2)),
+                             "measure multiclass Brier score: argument 'prediction': row sums to 0.9, not 1 "
+                             "(tolerance 1e-06) at index 0",
+                             heldout::input_error);
         const std::vector<double> ok_rows{0.5, 0.5, 0.2, 0.8};
         const std::vector<int> lab3{0, 2};
         CHECK_THROWS_WITH_AS(evaluate(multiclass_brier_score{}, lab3, heldout::rows(ok_rows, 2)),

@@ -8,7 +8,9 @@ function(run)
         message(FATAL_ERROR "failed (${rc}): ${ARGN}\n${out}\n${err}")
     endif()
 endfunction()
-set(gen -G ${GENERATOR} -DCMAKE_CXX_COMPILER=${CXX})
+# The same compiler and flags (e.g. -stdlib=libc++) as the build that runs this test.
+set(gen -G ${GENERATOR} -DCMAKE_CXX_COMPILER=${CXX} "-DCMAKE_CXX_FLAGS=${CXX_FLAGS}"
+    "-DCMAKE_EXE_LINKER_FLAGS=${LINKER_FLAGS}")
 run(${CMAKE_COMMAND} -S ${SOURCE_DIR} -B ${WORK_DIR}/lib ${gen} -DHELDOUT_BUILD_TESTS=OFF
     -DHELDOUT_BUILD_BENCH=OFF -DHELDOUT_BUILD_EXAMPLES=OFF -DHELDOUT_INSTALL=ON)
 run(${CMAKE_COMMAND} --install ${WORK_DIR}/lib --prefix ${WORK_DIR}/prefix)

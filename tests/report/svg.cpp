@@ -4,6 +4,7 @@
 #include <heldout/report/svg.hpp>
 
 #include "report/xml_check.hpp"
+#include "support/parse.hpp"
 
 #include <doctest/doctest.h>
 
@@ -60,7 +61,7 @@ TEST_SUITE("report/svg") {
         for (double x : {0.1, 1.0 / 3.0, 1e-300, 123456789.125, -2.5e17, 5e-324}) {
             const std::string s = number(x);
             double back = 0;
-            std::from_chars(s.data(), s.data() + s.size(), back);
+            heldout_test::double_from_chars(s.data(), s.data() + s.size(), back);
             CHECK(back == x);
         }
         CHECK(number(0.25) == "0.25");
@@ -208,7 +209,7 @@ TEST_SUITE("report/svg") {
                     CHECK(t.values[i] - t.values[i - 1] == doctest::Approx(t.step).epsilon(1e-9));
                 const std::string label = number(t.values[i], t.decimals);
                 double back = 0;
-                std::from_chars(label.data(), label.data() + label.size(), back);
+                heldout_test::double_from_chars(label.data(), label.data() + label.size(), back);
                 CHECK(std::abs(back - t.values[i]) <= 1e-6 * t.step);
             }
             // no tick is missing at either end

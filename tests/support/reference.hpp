@@ -5,6 +5,8 @@
 //   double expected = t.scalar("case0.mse");
 #pragma once
 
+#include "support/parse.hpp"
+
 #include <charconv>
 #include <fstream>
 #include <limits>
@@ -37,7 +39,7 @@ public:
             for (auto& x : v) {
                 std::string tok;
                 ls >> tok;
-                auto r = std::from_chars(tok.data(), tok.data() + tok.size(), x);
+                auto r = double_from_chars(tok.data(), tok.data() + tok.size(), x);
                 if (r.ec != std::errc{}) {
                     if (tok == "nan")
                         x = std::numeric_limits<double>::quiet_NaN();

@@ -175,11 +175,11 @@ inline void write_csv(std::ostream& os, std::span<const comparison> cs) {
             notes += (notes.empty() ? "" : "; ") + n;
         os << detail::csv_field(c.measure) << ',' << detail::csv_field(c.model_a) << ',' << detail::csv_field(c.model_b)
            << ',' << paired::id_text(c.method) << ',' << detail::number_text(c.level) << ','
-           << detail::number_text(c.difference) << ',' << detail::csv_number(c.se) << ','
-           << detail::csv_number(c.lower) << ',' << detail::csv_number(c.upper) << ','
-           << detail::number_text(c.statistic) << ',' << detail::csv_number(c.df) << ',' << detail::csv_number(c.df2)
-           << ',' << detail::number_text(c.p_value) << ',' << detail::csv_number(c.adjusted_p_value) << ','
-           << c.splits << ',' << c.observations << ',' << detail::csv_field(notes) << '\n';
+           << detail::number_text(c.difference) << ',' << detail::csv_number(c.se) << ',' << detail::csv_number(c.lower)
+           << ',' << detail::csv_number(c.upper) << ',' << detail::number_text(c.statistic) << ','
+           << detail::csv_number(c.df) << ',' << detail::csv_number(c.df2) << ',' << detail::number_text(c.p_value)
+           << ',' << detail::csv_number(c.adjusted_p_value) << ',' << c.splits << ',' << c.observations << ','
+           << detail::csv_field(notes) << '\n';
     }
 }
 
@@ -321,14 +321,13 @@ inline paired::method_id resolve(paired::method_id requested, const record_shape
     for (const need n : unmet)
         why += (why.empty() ? "" : "; ") + std::string(need_text(n));
     fail(who, "method",
-         method_name(requested) + " (" + std::string(paired::info(requested).label) +
-             ") does not apply to measure " + measure + ": " + why + ". Methods that apply here: " +
-             applicable_text(r, f));
+         method_name(requested) + " (" + std::string(paired::info(requested).label) + ") does not apply to measure " +
+             measure + ": " + why + ". Methods that apply here: " + applicable_text(r, f));
 }
 
 /// The split methods: corrected t, naive t, 5x2cv t and F over the per-split differences.
-inline void split_methods(comparison& c, paired::method_id id, std::span<const split_record> recs,
-                          const track_base& ta, const track_base& tb, double level) {
+inline void split_methods(comparison& c, paired::method_id id, std::span<const split_record> recs, const track_base& ta,
+                          const track_base& tb, double level) {
     std::vector<double> d;
     double train_sum = 0, test_sum = 0;
     std::size_t left_out = 0, max_fold = 0;
@@ -386,8 +385,8 @@ inline void split_methods(comparison& c, paired::method_id id, std::span<const s
         c.method_label += kfold ? " (Bouckaert-Frank)" : " (Nadeau-Bengio)";
         c.notes.push_back(std::string(kfold ? "repeated k-fold form (Bouckaert & Frank 2004)"
                                             : "subsampling form (Nadeau & Bengio 2003)") +
-                          ": variance factor 1/J + n_test/n_train with n_train " + number_text(n_train) +
-                          ", n_test " + number_text(n_test) + " (mean recorded sizes)");
+                          ": variance factor 1/J + n_test/n_train with n_train " + number_text(n_train) + ", n_test " +
+                          number_text(n_test) + " (mean recorded sizes)");
     } else {
         r = naive_resampled_t(d, level);
         c.notes.push_back("the naive paired t treats overlapping splits as independent and is known to reject "
@@ -495,7 +494,8 @@ comparison compare(const aggregator& agg_a, const aggregator& agg_b, const M& m,
             set = ta.paired_replicates(*aggregator_access::truth(agg_a), *aggregator_access::predictions(agg_a),
                                        *aggregator_access::predictions(agg_b), 0, n, o, bca ? &jack : nullptr);
             bootstrap_fill(c, id, c.difference, set, jack, method.replicates, method.seed, level);
-            c.notes.push_back("resampled the " + detail::count_text(n, "test row") + " with both models' predictions fixed");
+            c.notes.push_back("resampled the " + detail::count_text(n, "test row") +
+                              " with both models' predictions fixed");
         }
         return c;
     }

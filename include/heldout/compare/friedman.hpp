@@ -79,9 +79,9 @@ struct friedman_result {
 
 namespace detail::cmp {
 
-inline void check_alpha(std::string_view who, double alpha) {
+inline void check_alpha(std::string_view caller, double alpha) {
     if (!(alpha > 0 && alpha < 1))
-        fail(who, "alpha", "must lie in (0, 1), got " + number_text(alpha));
+        fail(caller, "alpha", "must lie in (0, 1), got " + number_text(alpha));
 }
 
 /// P(R <= q) for the range R of k iid standard normals (infinite degrees of freedom).

@@ -154,7 +154,8 @@ private:
 namespace detail {
 
 [[noreturn]] inline void fail(std::string_view who, std::string_view arg, std::string_view problem) {
-    throw input_error(error_details{error_code::bad_argument, std::string(who), std::string(arg), std::string(problem), {}});
+    throw input_error(
+        error_details{error_code::bad_argument, std::string(who), std::string(arg), std::string(problem), {}});
 }
 
 [[noreturn]] inline void fail_at(std::string_view who, std::string_view arg, std::string_view problem,

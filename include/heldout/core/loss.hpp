@@ -68,13 +68,17 @@ struct loss_state_probe {
 template <pointwise_loss L>
 struct loss_traits {
     static constexpr truth_kind truth = [] {
-        if constexpr (requires { { L::truth } -> std::convertible_to<truth_kind>; })
+        if constexpr (requires {
+                          { L::truth } -> std::convertible_to<truth_kind>;
+                      })
             return static_cast<truth_kind>(L::truth);
         else
             return truth_kind::real;
     }();
     static constexpr bool propagates_non_finite = [] {
-        if constexpr (requires { { L::propagates_non_finite } -> std::convertible_to<bool>; })
+        if constexpr (requires {
+                          { L::propagates_non_finite } -> std::convertible_to<bool>;
+                      })
             return static_cast<bool>(L::propagates_non_finite);
         else
             return false;
@@ -83,14 +87,18 @@ struct loss_traits {
 
     /// The mean's name: measure_name, or "mean <name> loss".
     static std::string measure_name() {
-        if constexpr (requires { { L::measure_name } -> std::convertible_to<std::string_view>; })
+        if constexpr (requires {
+                          { L::measure_name } -> std::convertible_to<std::string_view>;
+                      })
             return std::string(L::measure_name);
         else
             return "mean " + std::string(L::name) + " loss";
     }
     /// What the loss says about its domain, for messages ("" when it says nothing).
     static constexpr std::string_view truth_domain() noexcept {
-        if constexpr (requires { { L::truth_domain } -> std::convertible_to<std::string_view>; })
+        if constexpr (requires {
+                          { L::truth_domain } -> std::convertible_to<std::string_view>;
+                      })
             return L::truth_domain;
         else
             return {};
@@ -108,7 +116,9 @@ struct loss_traits {
         } else {
             if (l == L{})
                 return {};
-            if constexpr (requires { { l.parameters_text() } -> std::convertible_to<std::string>; })
+            if constexpr (requires {
+                              { l.parameters_text() } -> std::convertible_to<std::string>;
+                          })
                 return l.parameters_text();
             else
                 return "non-default parameters";
@@ -121,11 +131,14 @@ struct loss_traits {
                                                        "`bool operator==(const my_loss&) const = default;` so that "
                                                        "measures with different parameters are told apart");
             static_assert(std::default_initializable<L>, "heldout: a loss with parameters needs default values");
-            static_assert(requires(const L& c, L& m) {
-                c.visit_state(detail::loss_state_probe{});
-                m.visit_state(detail::loss_state_probe{});
-            }, "heldout: this loss has data members (parameters): give it visit_state(f) (const and non-const) calling "
-               "f on each, so serialised state keeps them");
+            static_assert(
+                requires(const L& c, L& m) {
+                    c.visit_state(detail::loss_state_probe{});
+                    m.visit_state(detail::loss_state_probe{});
+                },
+                "heldout: this loss has data members (parameters): give it visit_state(f) (const and non-const) "
+                "calling "
+                "f on each, so serialised state keeps them");
         }
         return true;
     }

@@ -111,7 +111,9 @@ using sample_prediction_t = typename sample_input<prediction_kind_t<M>>::type;
 
 template <class M>
 concept has_row_losses = requires(const M& m, const sample_truth_t<M>& t, const sample_prediction_t<M>& p,
-                                  std::span<double> out) { m.row_losses(t, p, out); };
+                                  std::span<double> out) {
+    m.row_losses(t, p, out);
+};
 template <class M>
 concept has_case_components = requires(const M& m, const sample_truth_t<M>& t, const sample_prediction_t<M>& p) {
     { m.case_components(t, p) } -> std::same_as<heldout::case_components>;
@@ -124,7 +126,9 @@ concept has_score_set = requires(const accumulator_t<M>& a, const sample_truth_t
 };
 template <class M>
 concept has_resampler = requires(const M& m, const sample_truth_t<M>& t, const sample_prediction_t<M>& p,
-                                 std::string_view who) { m.resampler(t, p, who); };
+                                 std::string_view who) {
+    m.resampler(t, p, who);
+};
 
 struct null_visitor {
     template <class X>
@@ -146,17 +150,26 @@ concept has_serialisable_parts = requires(const accumulator_t<M>& ca, accumulato
 template <class M>
 constexpr bool check_measure() {
     static_assert(std::copyable<M>, "heldout: a measure is a copyable struct");
-    static_assert(requires { { M::better } -> std::convertible_to<direction>; },
-                  "heldout: a measure declares `static constexpr heldout::direction better`");
+    static_assert(
+        requires {
+            { M::better } -> std::convertible_to<direction>;
+        },
+        "heldout: a measure declares `static constexpr heldout::direction better`");
     static_assert(data_kind<prediction_kind_t<M>>,
                   "heldout: a measure declares its prediction kind: `static constexpr heldout::prediction_kind kind` "
                   "or `using prediction = heldout::kinds::...;`");
     static_assert(data_kind<truth_kind_t<M>>, "heldout: a measure's `truth` is a kind from heldout::kinds");
-    static_assert(requires(const M& m) { { m.name() } -> std::convertible_to<std::string>; },
-                  "heldout: a measure has `std::string name() const`");
-    static_assert(requires(const M& m) { { m.accumulator() } -> accumulator; },
-                  "heldout: a measure's accumulator() returns a copyable state with reset(), merge(other) and "
-                  "value()");
+    static_assert(
+        requires(const M& m) {
+            { m.name() } -> std::convertible_to<std::string>;
+        },
+        "heldout: a measure has `std::string name() const`");
+    static_assert(
+        requires(const M& m) {
+            { m.accumulator() } -> accumulator;
+        },
+        "heldout: a measure's accumulator() returns a copyable state with reset(), merge(other) and "
+        "value()");
     static_assert(std::is_empty_v<M> || std::equality_comparable<M>,
                   "heldout: this measure has data members (parameters), so its identity includes them: declare how "
                   "they compare, e.g. `bool operator==(const my_measure&) const = default;`");

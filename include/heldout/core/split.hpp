@@ -51,12 +51,12 @@ constexpr std::string_view to_string(split_design d) noexcept {
 
 /// A train/test split of rows 0..n-1.
 struct split {
-    std::span<const std::size_t> train;      ///< rows to fit on (a bootstrap sample keeps duplicates)
-    std::span<const std::size_t> test;       ///< rows to score, ascending
-    std::size_t repeat = 0;                  ///< repetition number (0-based)
-    std::size_t fold = 0;                    ///< fold within the repetition (0-based)
-    std::size_t index = 0;                   ///< position of this split in its plan (0-based)
-    std::span<const std::uint32_t> counts{}; ///< bootstrap only: counts[r] = times row r was drawn (size n)
+    std::span<const std::size_t> train;         ///< rows to fit on (a bootstrap sample keeps duplicates)
+    std::span<const std::size_t> test;          ///< rows to score, ascending
+    std::size_t repeat = 0;                     ///< repetition number (0-based)
+    std::size_t fold = 0;                       ///< fold within the repetition (0-based)
+    std::size_t index = 0;                      ///< position of this split in its plan (0-based)
+    std::span<const std::uint32_t> counts{};    ///< bootstrap only: counts[r] = times row r was drawn (size n)
     split_design design = split_design::random; ///< how the plan drew it (bootstrap when counts are given)
 };
 

@@ -60,7 +60,9 @@ struct truth_of<M> {
 
 template <class M>
 constexpr bool has_key() {
-    return requires { { M::key } -> std::convertible_to<std::string_view>; };
+    return requires {
+        { M::key } -> std::convertible_to<std::string_view>;
+    };
 }
 
 } // namespace detail

@@ -73,9 +73,9 @@ inline std::size_t byte_count_sums(const std::uint8_t* c, const std::uint8_t* f,
             neg += n0 + n1;
             pos += p0 + p1;
         }
-        alignas(16) std::uint32_t lanes[4];
-        _mm_store_si128(reinterpret_cast<__m128i*>(lanes), acc);
-        s += std::uint64_t{lanes[0]} + lanes[1] + lanes[2] + lanes[3];
+        alignas(16) std::uint32_t part[4];
+        _mm_store_si128(reinterpret_cast<__m128i*>(part), acc);
+        s += std::uint64_t{part[0]} + part[1] + part[2] + part[3];
     }
 #else
     (void)c;
@@ -161,10 +161,10 @@ struct auc_resample_engine {
         std::uint64_t ties = 0;
         for (std::size_t g = 0; g < mixed.size(); g += 3) {
             std::uint64_t q = 0, p = 0;
-            for (std::uint32_t i = mixed[g]; i < mixed[g + 1]; ++i)
-                q += c[i];
-            for (std::uint32_t i = mixed[g + 1]; i < mixed[g + 2]; ++i)
-                p += c[i];
+            for (std::uint32_t r = mixed[g]; r < mixed[g + 1]; ++r)
+                q += c[r];
+            for (std::uint32_t r = mixed[g + 1]; r < mixed[g + 2]; ++r)
+                p += c[r];
             ties += p * q;
         }
         if constexpr (Clear)
@@ -248,7 +248,6 @@ struct auc_resample_engine {
         return true;
     }
 };
-
 
 } // namespace detail
 HELDOUT_NAMESPACE_END

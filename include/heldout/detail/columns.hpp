@@ -78,8 +78,7 @@ public:
     void clear() noexcept override { data.clear(); }
     std::type_index view_type() const noexcept override { return typeid(std::span<const std::int64_t>); }
     void view_into(std::size_t first, std::size_t count, void* out) const override {
-        *static_cast<std::span<const std::int64_t>*>(out) =
-            std::span<const std::int64_t>(data).subspan(first, count);
+        *static_cast<std::span<const std::int64_t>*>(out) = std::span<const std::int64_t>(data).subspan(first, count);
     }
     void write_cell(std::ostream& os, std::size_t row, std::size_t) const override { os << data[row]; }
 };
@@ -191,7 +190,9 @@ struct column_traits<R, std::enable_if_t<!probability_rows<R> && real_range<R>>>
 
 /// Input types the aggregator can record.
 template <class R>
-concept recordable = requires { typename column_traits<std::remove_cvref_t<R>>::column; };
+concept recordable = requires {
+    typename column_traits<std::remove_cvref_t<R>>::column;
+};
 
 namespace detail {
 

@@ -2,7 +2,8 @@
 // Internal: include the public headers instead (estimate/estimate.hpp uses it).
 //
 // Numbers are written in the shortest form that reads back to the same double
-// (std::to_chars without a precision), so a JSON consumer recovers every bit. JSON has no
+// (std::to_chars without a precision), so a JSON consumer recovers every bit; libstdc++ and
+// libc++ (since LLVM 14) give the same text (tests/detail/json.cpp, strict.number_text). JSON has no
 // NaN or infinity: a non-finite number is written as null, and callers decide beforehand
 // whether that can happen (heldout's estimates hold finite numbers or absent values).
 // Strings are written as valid JSON whatever their bytes (see json_quote).

@@ -234,13 +234,13 @@ inline void field_ranges::add_doubles(const double* s, std::size_t n) noexcept {
         const __m128i h = _mm_or_si128(_mm_or_si128(top(0), _mm_slli_epi64(top(2), 16)),
                                        _mm_or_si128(_mm_slli_epi64(top(4), 32), _mm_slli_epi64(top(6), 48)));
         const __m128i e = _mm_and_si128(h, exp_mask);
-        const __m128i small = _mm_cmpeq_epi16(e, _mm_setzero_si128());
+        const __m128i tiny = _mm_cmpeq_epi16(e, _mm_setzero_si128()); // zero or subnormal
         bad = _mm_or_si128(bad, _mm_cmpeq_epi16(e, exp_mask));
-        sm = _mm_or_si128(sm, small);
+        sm = _mm_or_si128(sm, tiny);
         const __m128i neg = _mm_srai_epi16(h, 15);
         const __m128i t = _mm_srli_epi16(_mm_xor_si128(h, _mm_or_si128(neg, sign)), 4);
-        const __m128i nm = _mm_andnot_si128(small, neg);
-        const __m128i pm = _mm_andnot_si128(_mm_or_si128(small, neg), ones);
+        const __m128i nm = _mm_andnot_si128(tiny, neg);
+        const __m128i pm = _mm_andnot_si128(_mm_or_si128(tiny, neg), ones);
         const __m128i nt = _mm_and_si128(nm, t), pt = _mm_and_si128(pm, t);
         nlo = _mm_min_epi16(nlo, _mm_or_si128(nt, _mm_andnot_si128(nm, empty_low)));
         nhi = _mm_max_epi16(nhi, _mm_or_si128(nt, _mm_andnot_si128(nm, ones)));

@@ -229,9 +229,8 @@ struct measure_track final : track_base {
         }
     }
 
-    bootstrap_replicate_set replicates(const column_base& t, const column_base& p, std::size_t first,
-                                       std::size_t count, const bootstrap_options& o,
-                                       std::vector<double>* jackknife) const override {
+    bootstrap_replicate_set replicates(const column_base& t, const column_base& p, std::size_t first, std::size_t count,
+                                       const bootstrap_options& o, std::vector<double>* jackknife) const override {
         constexpr std::string_view w = "heldout::aggregator::estimate";
         bootstrap_replicate_set set;
         with_pairing(measure, t, p, first, count, w, [&](const auto& tt, const auto& pp) {

@@ -83,11 +83,11 @@ struct recorded_column {
 /// What the recorded splits look like (which methods apply).
 struct plan_shape {
     std::size_t splits = 0;
-    std::size_t repeats = 0; ///< distinct repeat numbers
-    bool bootstrap = false;  ///< some split carried draw counts
-    double mean_train = 0;   ///< mean train size
-    double mean_test = 0;    ///< mean test size
-    bool sizes_vary = false; ///< train or test sizes differ between splits
+    std::size_t repeats = 0;                    ///< distinct repeat numbers
+    bool bootstrap = false;                     ///< some split carried draw counts
+    double mean_train = 0;                      ///< mean train size
+    double mean_test = 0;                       ///< mean test size
+    bool sizes_vary = false;                    ///< train or test sizes differ between splits
     split_design design = split_design::random; ///< the design of the splits (of the first, when mixed)
     bool mixed_designs = false;                 ///< splits of several designs
 };
@@ -104,9 +104,11 @@ public:
     aggregator() = default;
 
     /// An aggregator tracking these measures from the first record on.
+    // At least one measure, and never an aggregator: checked first, so that asking whether an
+    // aggregator is copyable does not ask whether an aggregator is a measure (clang recurses).
     template <class M0, class... Ms>
-    requires(!std::is_same_v<std::remove_cvref_t<M0>, aggregator>) && outer_measure<M0> && (outer_measure<Ms> && ...)
-    explicit aggregator(const M0& m0, const Ms&... ms) {
+    requires(!std::is_same_v<std::remove_cvref_t<M0>, aggregator>) && outer_measure<M0> &&
+        (outer_measure<Ms> && ...) explicit aggregator(const M0& m0, const Ms&... ms) {
         add_measure(m0);
         (add_measure(ms), ...);
     }
@@ -408,8 +410,9 @@ private:
             out.cols = m->cols;
         } else
             detail::fail("heldout::aggregator::" + std::string(fn), "",
-                         "the recorded column holds " + c->describe() + ": read it with truth_view / "
-                                                                        "predictions_view");
+                         "the recorded column holds " + c->describe() +
+                             ": read it with truth_view / "
+                             "predictions_view");
         return out;
     }
 
@@ -512,8 +515,8 @@ inline std::vector<std::string> undefined_notes(const track_base& t) {
 inline measure_facts facts_of(const track_base& t) {
     measure_facts f;
     f.row_losses = t.row_losses;
-    f.zero_one_losses = t.row_losses && std::all_of(t.losses.begin(), t.losses.end(),
-                                                    [](double x) { return x == 0.0 || x == 1.0; });
+    f.zero_one_losses =
+        t.row_losses && std::all_of(t.losses.begin(), t.losses.end(), [](double x) { return x == 0.0 || x == 1.0; });
     f.case_components = t.case_components;
     f.weighted_add = t.weighted_add;
     f.lower_is_better = t.lower_is_better;

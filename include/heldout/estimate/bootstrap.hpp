@@ -50,8 +50,8 @@
 
 #include <heldout/core/measure.hpp>
 #include <heldout/core/random.hpp>
-#include <heldout/estimate/t_interval.hpp>
 #include <heldout/detail/auc_resampling.hpp>
+#include <heldout/estimate/t_interval.hpp>
 #include <heldout/measure/auc.hpp>
 
 #include <algorithm>
@@ -64,7 +64,6 @@
 #include <string_view>
 #include <type_traits>
 #include <vector>
-
 
 HELDOUT_NAMESPACE_BEGIN
 
@@ -332,12 +331,12 @@ struct resample_engine {
         return with_counts(counts, out);
     }
 
-    bool with_counts(std::span<const std::uint32_t> counts, double& out) {
+    bool with_counts(std::span<const std::uint32_t> c, double& out) {
         acc.reset();
-        acc.add(truth, prediction, counts);
+        acc.add(truth, prediction, c);
         return try_value(acc, out);
     }
-    bool with_row_counts(std::span<const std::uint32_t> counts, double& out) { return with_counts(counts, out); }
+    bool with_row_counts(std::span<const std::uint32_t> c, double& out) { return with_counts(c, out); }
 
     void add_rows(accumulator_t<M>& a, std::size_t first, std::size_t count) const {
         if (count > 0)

@@ -352,7 +352,7 @@ pair_variance delong_pair(std::string_view who, std::span<const L> y, std::span<
     pair_variance out;
     out.auc_a = auc_of(u2a);
     out.auc_b = auc_of(u2b);
-    const long double delta = static_cast<long double>(out.auc_a) - out.auc_b;
+    const long double delta = static_cast<long double>(out.auc_a) - static_cast<long double>(out.auc_b);
     const auto centred = [&](const compensated_sum& se, const compensated_sum& sq, std::uint64_t count) {
         const long double q =
             static_cast<long double>(sq.value()) -

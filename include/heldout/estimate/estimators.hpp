@@ -119,8 +119,8 @@ void estimate_bootstrap(const In& in, estimate& e, ci::method_id id) {
         fail_undefined(in.who, std::to_string(set.undefined) + " of " + std::to_string(o.replicates) +
                                    " bootstrap replicates are undefined; fewer than 2 remain");
     const double theta = *in.track.values[0];
-    const bootstrap_result r =
-        id == ci::method_id::bca ? bca_interval(theta, set.values, jack, in.level) : percentile_interval(theta, set.values, in.level);
+    const bootstrap_result r = id == ci::method_id::bca ? bca_interval(theta, set.values, jack, in.level)
+                                                        : percentile_interval(theta, set.values, in.level);
     e.se = sd_of(set.values);
     e.lower = r.lower;
     e.upper = r.upper;
@@ -193,13 +193,13 @@ void estimate_632(const In& in, estimate& e, ci::method_id id) {
         fail_undefined(in.who, "the apparent error is undefined: " + in.track.apparent_reason);
     const auto r = bootstrap_632(*in.track.apparent, err1, gamma);
     e.value = id == ci::method_id::bootstrap_632 ? r.err_632 : r.err_632_plus;
-    e.notes.push_back("point estimate (no interval): apparent " + number_text(r.apparent) +
-                      ", leave-one-out bootstrap " + number_text(err1) + ", no-information " + number_text(gamma) +
-                      (id == ci::method_id::bootstrap_632_plus
-                           ? ", relative overfitting " + number_text(r.relative_overfitting) + ", weight " +
-                                 number_text(r.weight)
-                           : std::string(", weight 0.632")) +
-                      "; mean of the per-split out-of-bag values " + number_text(mean_of(in.values)));
+    e.notes.push_back(
+        "point estimate (no interval): apparent " + number_text(r.apparent) + ", leave-one-out bootstrap " +
+        number_text(err1) + ", no-information " + number_text(gamma) +
+        (id == ci::method_id::bootstrap_632_plus
+             ? ", relative overfitting " + number_text(r.relative_overfitting) + ", weight " + number_text(r.weight)
+             : std::string(", weight 0.632")) +
+        "; mean of the per-split out-of-bag values " + number_text(mean_of(in.values)));
     if (const std::size_t never = oob.never_out_of_bag(); never > 0)
         e.notes.push_back(count_text(never, "row") + " never out of bag, left out of the leave-one-out "
                                                      "bootstrap error");

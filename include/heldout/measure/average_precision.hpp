@@ -145,6 +145,8 @@ struct auprc {
 } // namespace measure
 
 inline measure::average_precision measure::detail_pr::ap_eval::measure() const { return {}; }
-inline measure::auprc measure::detail_pr::auprc_eval::measure() const { return {static_cast<measure::pr_start>(start)}; }
+inline measure::auprc measure::detail_pr::auprc_eval::measure() const {
+    return {static_cast<measure::pr_start>(start)};
+}
 
 HELDOUT_NAMESPACE_END

@@ -100,8 +100,8 @@ public:
     void merge(const binned_auc_accumulator& o) {
         if (o.bins_ != bins_ || o.low_ != low_ || o.high_ != high_)
             detail::fail_state(who(), "other",
-                         "different bins or range (" + std::to_string(o.bins_) + " bins on " + o.range() + " against " +
-                             std::to_string(bins_) + " on " + range() + ")");
+                               "different bins or range (" + std::to_string(o.bins_) + " bins on " + o.range() +
+                                   " against " + std::to_string(bins_) + " on " + range() + ")");
         for (std::size_t b = 0; b < positive_.size(); ++b) {
             positive_[b] += o.positive_[b];
             negative_[b] += o.negative_[b];
@@ -221,7 +221,8 @@ struct binned_auc {
     bool operator==(const binned_auc&) const = default;
     std::string name() const {
         std::string p;
-        detail::parameter_if<std::size_t>(p, "bins", bins, 1024, [](const std::size_t& b) { return std::to_string(b); });
+        detail::parameter_if<std::size_t>(p, "bins", bins, 1024,
+                                          [](const std::size_t& b) { return std::to_string(b); });
         if (low != 0 || high != 1)
             p += (p.empty() ? "" : ", ") + std::string("range [") + detail::number_text(low) + ", " +
                  detail::number_text(high) + "]";

@@ -199,6 +199,5 @@ inline multiclass_brier_score multiclass_brier_score_accumulator::measure() cons
 
 inline measure::brier_score detail::brier_policy::measure() const { return {}; }
 
-namespace measure {
-} // namespace measure
+namespace measure {} // namespace measure
 HELDOUT_NAMESPACE_END

@@ -360,7 +360,8 @@ private:
 /// class-probability rows.
 class multiclass_calibration_error_accumulator : public calibration_error_accumulator {
 public:
-    multiclass_calibration_error_accumulator() : multiclass_calibration_error_accumulator(15, bin_rule::equal_width, calibration_statistic::expected) {}
+    multiclass_calibration_error_accumulator()
+        : multiclass_calibration_error_accumulator(15, bin_rule::equal_width, calibration_statistic::expected) {}
     multiclass_calibration_error_accumulator(std::size_t bins, bin_rule rule, calibration_statistic statistic)
         : calibration_error_accumulator(bins, rule, calibration_variant::top_label, statistic, true) {}
     void merge(const multiclass_calibration_error_accumulator& o) { calibration_error_accumulator::merge(o); }

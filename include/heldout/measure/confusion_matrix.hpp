@@ -624,13 +624,15 @@ private:
         const std::size_t old = k_;
         cells_.resize(k * k, 0.0);
         carry_.resize(k * k, 0.0);
+        double* const cells = cells_.data();
+        double* const carry = carry_.data();
         for (std::size_t i = old; i-- > 0;) {
             const std::size_t from = i * old, to = i * k;
-            std::copy_backward(cells_.begin() + from, cells_.begin() + from + old, cells_.begin() + to + old);
-            std::copy_backward(carry_.begin() + from, carry_.begin() + from + old, carry_.begin() + to + old);
+            std::copy_backward(cells + from, cells + from + old, cells + to + old);
+            std::copy_backward(carry + from, carry + from + old, carry + to + old);
             // zero the new columns of row i (they may hold cells of the old layout)
-            std::fill(cells_.begin() + to + old, cells_.begin() + to + k, 0.0);
-            std::fill(carry_.begin() + to + old, carry_.begin() + to + k, 0.0);
+            std::fill(cells + to + old, cells + to + k, 0.0);
+            std::fill(carry + to + old, carry + to + k, 0.0);
         }
         k_ = k;
     }

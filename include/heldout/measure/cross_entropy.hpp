@@ -171,8 +171,8 @@ struct cross_entropy {
         auto t = values_of(truth);
         auto p = values_of(prediction);
         for (std::size_t i = 0; i < out.size(); ++i)
-            out[i] = detail::log_loss_term<double>::log_loss_exact(static_cast<double>(t[i]),
-                                                                    static_cast<double>(p[i]), eps);
+            out[i] = detail::log_loss_term<double>::log_loss_exact(static_cast<double>(t[i]), static_cast<double>(p[i]),
+                                                                   eps);
     }
     cross_entropy_accumulator accumulator() const {
         return cross_entropy_accumulator(detail::cross_entropy_policy{eps});
@@ -315,6 +315,5 @@ inline multiclass_cross_entropy multiclass_cross_entropy_accumulator::measure() 
 
 inline measure::cross_entropy detail::cross_entropy_policy::measure() const { return {eps}; }
 
-namespace measure {
-} // namespace measure
+namespace measure {} // namespace measure
 HELDOUT_NAMESPACE_END

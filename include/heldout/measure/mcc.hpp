@@ -35,7 +35,9 @@ struct mcc {
     std::size_t classes = 0;
 
     bool operator==(const mcc&) const = default;
-    std::string name() const { return detail::with_parameters("MCC", classes == 0 ? "" : "classes " + std::to_string(classes)); }
+    std::string name() const {
+        return detail::with_parameters("MCC", classes == 0 ? "" : "classes " + std::to_string(classes));
+    }
     /// The name in error messages (without the class count).
     std::string message_name() const { return "MCC"; }
     table_accumulator<mcc> accumulator() const { return table_accumulator<mcc>(*this); }

@@ -324,7 +324,9 @@ struct mean_loss {
             return (void)o, true;
     }
     /// "MSE", "mean Huber loss (delta 2)": parameters show when they are not the default.
-    std::string name() const { return detail::with_parameters(loss_traits<L>::measure_name(), loss_traits<L>::parameters_text(loss)); }
+    std::string name() const {
+        return detail::with_parameters(loss_traits<L>::measure_name(), loss_traits<L>::parameters_text(loss));
+    }
     mean_loss_accumulator<L> accumulator() const { return mean_loss_accumulator<L>(loss); }
 
     /// The loss of each row (rows that add() accepted): out[i] = L(truth[i], prediction[i]).

@@ -175,7 +175,8 @@ inline std::string combined_name(const std::string& base, measure::class_combina
 }
 inline std::string combined_name(const std::string& base, measure::class_combination how, std::size_t positive,
                                  std::size_t classes) {
-    return with_parameters(combined_name(base, how, positive), classes == 0 ? "" : "classes " + std::to_string(classes));
+    return with_parameters(combined_name(base, how, positive),
+                           classes == 0 ? "" : "classes " + std::to_string(classes));
 }
 
 /// Checks the parameters shared by the per-class measures; returns the table's fixed k.
@@ -350,7 +351,9 @@ struct f_beta {
         return detail::combined_name("F" + detail::number_text(beta), combination, positive, classes);
     }
     /// The name in error messages (without the class count).
-    std::string message_name() const { return detail::combined_name("F" + detail::number_text(beta), combination, positive); }
+    std::string message_name() const {
+        return detail::combined_name("F" + detail::number_text(beta), combination, positive);
+    }
     table_accumulator<f_beta> accumulator() const { return table_accumulator<f_beta>(*this); }
     double from_table(const Eigen::MatrixXd& table) const {
         const std::string who = "measure " + message_name();
@@ -359,7 +362,8 @@ struct f_beta {
     }
     std::size_t table_classes() const {
         if (!(std::isfinite(beta) && beta > 0))
-            detail::fail("measure " + message_name(), "beta", "must be finite and positive, got " + detail::number_text(beta));
+            detail::fail("measure " + message_name(), "beta",
+                         "must be finite and positive, got " + detail::number_text(beta));
         return detail::combined_classes("measure " + message_name(), combination, positive, classes);
     }
     /// The value from a table and its margins; `who` names the measure in messages.

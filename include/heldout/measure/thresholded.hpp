@@ -39,11 +39,11 @@ inline constexpr std::string_view key_prefix = "at_threshold/";
 inline constexpr std::size_t chunk = 4096; // labels made on the stack, a chunk at a time
 
 template <class M>
-using capabilities_of = std::conditional_t<
-    offers_v<M, cap::row_losses>,
-    std::conditional_t<offers_v<M, cap::serialisable>, offers<cap::row_losses, cap::serialisable>,
-                       offers<cap::row_losses>>,
-    std::conditional_t<offers_v<M, cap::serialisable>, offers<cap::serialisable>, offers<>>>;
+using capabilities_of =
+    std::conditional_t<offers_v<M, cap::row_losses>,
+                       std::conditional_t<offers_v<M, cap::serialisable>, offers<cap::row_losses, cap::serialisable>,
+                                          offers<cap::row_losses>>,
+                       std::conditional_t<offers_v<M, cap::serialisable>, offers<cap::serialisable>, offers<>>>;
 
 template <class M>
 constexpr std::string_view key_of() {
@@ -109,24 +109,16 @@ public:
     const accumulator_t<M>& inner() const noexcept { return inner_; }
 
     /// The measure this state belongs to (inner measure and threshold).
-    thresholded<M> measure() const
-    requires offers_v<M, cap::serialisable>
-    {
-        return {inner_.measure(), threshold_};
-    }
+    thresholded<M> measure() const requires offers_v<M, cap::serialisable> { return {inner_.measure(), threshold_}; }
 
     template <class F>
-    void visit_state(F&& f)
-    requires offers_v<M, cap::serialisable>
-    {
+    void visit_state(F&& f) requires offers_v<M, cap::serialisable> {
         f(threshold_);
         check_threshold(threshold_); // read from bytes: checked as a given one
         inner_.visit_state(f);
     }
     template <class F>
-    void visit_state(F&& f) const
-    requires offers_v<M, cap::serialisable>
-    {
+    void visit_state(F&& f) const requires offers_v<M, cap::serialisable> {
         f(threshold_);
         inner_.visit_state(f);
     }
@@ -191,15 +183,16 @@ struct thresholded {
 
     bool operator==(const thresholded& o) const { return same_measure(measure, o.measure) && threshold == o.threshold; }
     /// "classification error (threshold 0.3)": the threshold always shows.
-    std::string name() const { return detail::with_parameters(measure.name(), "threshold " + detail::number_text(threshold)); }
+    std::string name() const {
+        return detail::with_parameters(measure.name(), "threshold " + detail::number_text(threshold));
+    }
     thresholded_accumulator<M> accumulator() const { return thresholded_accumulator<M>(measure, threshold); }
 
     /// The inner measure's per-row values of the thresholded labels.
     template <label_range T, real_range S>
-    void row_losses(const T& truth, const S& scores, std::span<double> out) const
-    requires offers_v<M, cap::row_losses>
-    {
-        const auto t = values_of(truth);
+    void row_losses(const T& labels_in, const S& scores,
+                    std::span<double> out) const requires offers_v<M, cap::row_losses> {
+        const auto t = values_of(labels_in);
         const auto s = values_of(scores);
         std::array<std::uint8_t, detail_threshold::chunk> labels;
         for (std::size_t first = 0; first < out.size(); first += detail_threshold::chunk) {

@@ -417,8 +417,9 @@ public:
         const double pw = o_.width - left - right, ph = o_.height - top - bottom;
         if (!(pw > 20 && ph > 20))
             detail::fail("heldout::report::figure", "width", "too small for the axes and labels");
-        auto px = [&](double x) { return left + (x - xlo) / (xhi - xlo) * pw; };
-        auto py = [&](double y) { return top + ph - (y - ylo) / (yhi - ylo) * ph; };
+        // Init-captures: clang 14 does not yet let a lambda capture a structured binding (C++20).
+        auto px = [&, x0 = xlo, x1 = xhi](double x) { return left + (x - x0) / (x1 - x0) * pw; };
+        auto py = [&, y0 = ylo, y1 = yhi](double y) { return top + ph - (y - y0) / (y1 - y0) * ph; };
 
         if (!o_.title.empty())
             doc.text(o_.width / 2, 26, o_.title, {.size = 16, .align = anchor::middle, .bold = true});
