@@ -10,6 +10,7 @@
 #include <heldout/censored/auc_at.hpp>
 #include <heldout/censored/brier.hpp>
 #include <heldout/censored/censoring_estimate.hpp>
+#include <heldout/censored/column.hpp>
 #include <heldout/censored/concordance_estimate.hpp>
 #include <heldout/censored/harrell_c.hpp>
 #include <heldout/censored/truth.hpp>

@@ -2,6 +2,9 @@
 // reference tests/reference/ref_censored.py (R survival's concordance and survfit, base-R IPCW
 // AUC and Brier score).
 #include <heldout/censored.hpp>
+#include <heldout/estimate/aggregator.hpp>
+#include <heldout/plan/kfold.hpp>
+#include <heldout/stream/serialize.hpp>
 
 #include "support/reference.hpp"
 
@@ -225,6 +228,48 @@ TEST_SUITE("censored/censored") {
                     conc += a[i] > a[j] ? 1.0 : (a[i] == a[j] ? 0.5 : 0.0);
                 }
         CHECK(heldout::evaluate(m::harrell_c{}, y, a) == doctest::Approx(conc / comp).epsilon(1e-14));
+    }
+
+    TEST_CASE("serialised state round-trips and merges; the aggregator records censored truths") {
+        const heldout_test::reference_table t("ref_censored");
+        const auto time = t.get("time");
+        const auto event = as_events(t.get("event"));
+        const auto a = t.get("a");
+        const auto y = heldout::censored(time, event);
+        const m::uno_c uno{.horizon = t.scalar("tau")};
+
+        auto acc = uno.accumulator();
+        acc.add(y, a);
+        const auto bytes = heldout::serialize(acc);
+        const auto back = heldout::deserialize<decltype(acc)>(bytes);
+        CHECK(back.measure() == uno);
+        CHECK(back.value() == acc.value());
+        auto other = m::uno_c{.horizon = 1}.accumulator();
+        CHECK_THROWS_AS(other.merge(back), heldout::state_error);
+
+        // 5-fold CV stratified by the event indicator: per-split values equal evaluate on the
+        // split's rows; the pooled value equals the measure over all rows (every row tested once)
+        heldout::aggregator agg(m::harrell_c{}, uno);
+        std::vector<double> split_values;
+        for (const heldout::split& s : heldout::kfold{.folds = 5, .seed = 3}.splits(heldout::strata(event))) {
+            std::vector<double> tt, rr;
+            std::vector<std::uint8_t> ee;
+            for (const auto i : s.test) {
+                tt.push_back(time[i]);
+                ee.push_back(event[i]);
+                rr.push_back(a[i]);
+            }
+            agg.record(s, heldout::censored(tt, ee), rr);
+            split_values.push_back(heldout::evaluate(m::harrell_c{}, heldout::censored(tt, ee), rr));
+        }
+        const heldout::estimate e = agg.estimate(m::harrell_c{});
+        CHECK(e.splits == 5);
+        double mean = 0;
+        for (const double v : split_values)
+            mean += v / 5;
+        CHECK(e.value == doctest::Approx(mean).epsilon(1e-14));
+        CHECK(e.has_interval());
+        CHECK(agg.estimate(uno).splits == 5);
     }
 
 } // TEST_SUITE

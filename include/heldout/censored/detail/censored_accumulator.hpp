@@ -5,6 +5,7 @@
 // `void check_prediction(double p, std::size_t row) const` and its prediction width.
 #pragma once
 
+#include <heldout/censored/column.hpp> // the aggregator records censored truths
 #include <heldout/censored/truth.hpp>
 #include <heldout/core/error.hpp>
 #include <heldout/core/values.hpp>
