@@ -147,6 +147,8 @@ TEST_SUITE("censored/censored") {
         const auto b = t.get("b");
         const auto y = heldout::censored(time, event);
         const double tau = t.scalar("tau");
+        MESSAGE(
+            (t.scalar("R.live") == 1.0 ? "R reference: live (Rscript)" : "R reference: stored values (no Rscript)"));
 
         // R survival concordance(timewt = "n", reverse = TRUE): coef and var
         const auto hv = t.get("R.harrell.value");
