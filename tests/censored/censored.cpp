@@ -12,6 +12,7 @@
 
 #include <cmath>
 #include <limits>
+#include <sstream>
 #include <string>
 #include <vector>
 
@@ -230,6 +231,25 @@ TEST_SUITE("censored/censored") {
                     conc += a[i] > a[j] ? 1.0 : (a[i] == a[j] ? 0.5 : 0.0);
                 }
         CHECK(heldout::evaluate(m::harrell_c{}, y, a) == doctest::Approx(conc / comp).epsilon(1e-14));
+    }
+
+    TEST_CASE("concordance_estimate and compare_concordance: printing, level, identical models") {
+        const std::vector<double> time{1, 2, 3, 4, 5, 6, 2, 8};
+        const std::vector<int> event{1, 1, 0, 1, 1, 0, 1, 1};
+        const std::vector<double> a{4, 3, 2, 1, 0, 2, 5, 1};
+        const auto y = heldout::censored(time, event);
+        const auto e = heldout::concordance_estimate(m::harrell_c{}, y, a, 0.9);
+        std::ostringstream os;
+        os << e;
+        CHECK(os.str().find("infinitesimal jackknife, n=8") != std::string::npos);
+        CHECK(e.value == heldout::evaluate(m::harrell_c{}, y, a));
+        CHECK(*e.lower < e.value);
+        CHECK(*e.upper - e.value == doctest::Approx(e.value - *e.lower).epsilon(1e-15));
+        CHECK_THROWS_AS(heldout::concordance_estimate(m::harrell_c{}, y, a, 1.0), heldout::input_error);
+        const auto same = heldout::compare_concordance(m::harrell_c{}, y, a, a);
+        CHECK(same.difference == 0.0);
+        CHECK(same.p_value == 1.0);
+        CHECK(*same.se == 0.0);
     }
 
     TEST_CASE("serialised state round-trips and merges; the aggregator records censored truths") {

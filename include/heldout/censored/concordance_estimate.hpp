@@ -107,7 +107,7 @@ requires detail::concordance_measure<M> estimate concordance_estimate(const M& m
     e.upper = c.value + z * *e.se;
     e.level = level;
     e.method_label = "normal, infinitesimal jackknife";
-    e.splits = 1;
+    e.splits = 0; // one test set, no splits (as the DeLong interval)
     e.observations = truth.size();
     e.notes.push_back("one test set; variance by the infinitesimal jackknife (Therneau & Atkinson)");
     if constexpr (std::same_as<M, measure::uno_c>)
