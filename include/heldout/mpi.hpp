@@ -126,8 +126,11 @@ inline std::vector<std::vector<std::byte>> all_gather(std::span<const std::byte>
         // MPI counts are int: one exchange carries at most 2 GiB - 1. Every rank sees the same
         // sizes, so every rank refuses together.
         if (total + sizes[r] > static_cast<unsigned long long>(INT_MAX))
-            throw input_error(error_details{error_code::bad_argument, "heldout::mpi", "state",
-                                            "the ranks' bytes add up to more than 2 GiB in one exchange", {}});
+            throw input_error(error_details{error_code::bad_argument,
+                                            "heldout::mpi",
+                                            "state",
+                                            "the ranks' bytes add up to more than 2 GiB in one exchange",
+                                            {}});
         counts[r] = static_cast<int>(sizes[r]);
         offsets[r] = static_cast<int>(total);
         total += sizes[r];
@@ -192,8 +195,7 @@ auto guarded(MPI_Comm comm, F&& f) {
 }
 
 /// Refuses (on every rank) if the ranks' fingerprints differ; `what` says what differs.
-inline void same_everywhere(std::uint64_t fingerprint, std::string_view who, std::string_view what,
-                            MPI_Comm comm) {
+inline void same_everywhere(std::uint64_t fingerprint, std::string_view who, std::string_view what, MPI_Comm comm) {
     const auto n = static_cast<std::size_t>(size_of(comm));
     unsigned long long mine = fingerprint;
     std::vector<unsigned long long> all(n);
@@ -201,7 +203,9 @@ inline void same_everywhere(std::uint64_t fingerprint, std::string_view who, std
           "MPI_Allgather");
     for (std::size_t r = 1; r < n; ++r)
         if (all[r] != all[0])
-            throw state_error(error_details{error_code::state_mismatch, std::string(who), std::string(what),
+            throw state_error(error_details{error_code::state_mismatch,
+                                            std::string(who),
+                                            std::string(what),
                                             "differs between rank 0 and rank " + std::to_string(r) +
                                                 " (every rank must pass the same)",
                                             {}});
@@ -403,12 +407,14 @@ requires std::invocable<F&, std::span<const std::size_t>, std::span<const std::s
             if (task < n_splits) {
                 const owned_split& s = plan.all[task];
                 if (!no_out_of_bag(s)) {
-                    const auto r = fit_predict(std::span<const std::size_t>(s.train), std::span<const std::size_t>(s.test));
+                    const auto r =
+                        fit_predict(std::span<const std::size_t>(s.train), std::span<const std::size_t>(s.test));
                     const auto v = values_of(r, who, "fit_predict result");
                     pred.assign(v.begin(), v.end());
                 }
             } else {
-                const auto r = fit_predict(std::span<const std::size_t>(all_rows), std::span<const std::size_t>(all_rows));
+                const auto r =
+                    fit_predict(std::span<const std::size_t>(all_rows), std::span<const std::size_t>(all_rows));
                 const auto v = values_of(r, who, "fit_predict result");
                 pred.assign(v.begin(), v.end());
             }
@@ -454,7 +460,7 @@ requires std::invocable<F&, std::span<const std::size_t>, std::span<const std::s
                 options.progress(d, tasks);
             }
         };
-        auto answer = [&](const MPI_Status& st, const long long (&msg)[2]) {
+        auto answer = [&](const MPI_Status& st, const long long(&msg)[2]) {
             if (msg[0] != 0)
                 stop = true; // a failed worker: hand out nothing more, to anyone
             worker_done[static_cast<std::size_t>(st.MPI_SOURCE)] = static_cast<std::size_t>(msg[1]);
@@ -582,8 +588,7 @@ requires std::invocable<F&, std::span<const std::size_t>, std::span<const std::s
 /// The same with default options.
 template <std::ranges::input_range Splits, value_range T, class F, outer_measure... Ms>
 requires std::invocable<F&, std::span<const std::size_t>, std::span<const std::size_t>>
-    aggregator evaluate_splits(MPI_Comm comm, Splits&& splits, const T& truth, F&& fit_predict,
-                               const Ms&... measures) {
+    aggregator evaluate_splits(MPI_Comm comm, Splits&& splits, const T& truth, F&& fit_predict, const Ms&... measures) {
     return mpi::evaluate_splits(comm, std::forward<Splits>(splits), truth, std::forward<F>(fit_predict),
                                 split_options{}, measures...);
 }

@@ -128,15 +128,20 @@ int main(int argc, char** argv) {
 
     try {
         // merge: bit for bit the one-machine left-to-right merge, for several families.
-        check_merge(hm::mse{}, comm, ranks, rank, [](auto& a, const shard& s) { a.add(s.y, s.f); }, "MSE");
-        check_merge(hm::r_squared{}, comm, ranks, rank, [](auto& a, const shard& s) { a.add(s.y, s.f); }, "R2");
-        check_merge(hm::median_absolute_error{}, comm, ranks, rank, [](auto& a, const shard& s) { a.add(s.y, s.f); },
-                    "median absolute error");
-        check_merge(hm::auc{}, comm, ranks, rank, [](auto& a, const shard& s) { a.add(s.outcome, s.prob); }, "AUC");
-        check_merge(hm::average_precision{}, comm, ranks, rank,
-                    [](auto& a, const shard& s) { a.add(s.outcome, s.prob); }, "average precision");
-        check_merge(hm::brier_score{}, comm, ranks, rank, [](auto& a, const shard& s) { a.add(s.outcome, s.prob); },
-                    "Brier");
+        check_merge(
+            hm::mse{}, comm, ranks, rank, [](auto& a, const shard& s) { a.add(s.y, s.f); }, "MSE");
+        check_merge(
+            hm::r_squared{}, comm, ranks, rank, [](auto& a, const shard& s) { a.add(s.y, s.f); }, "R2");
+        check_merge(
+            hm::median_absolute_error{}, comm, ranks, rank, [](auto& a, const shard& s) { a.add(s.y, s.f); },
+            "median absolute error");
+        check_merge(
+            hm::auc{}, comm, ranks, rank, [](auto& a, const shard& s) { a.add(s.outcome, s.prob); }, "AUC");
+        check_merge(
+            hm::average_precision{}, comm, ranks, rank, [](auto& a, const shard& s) { a.add(s.outcome, s.prob); },
+            "average precision");
+        check_merge(
+            hm::brier_score{}, comm, ranks, rank, [](auto& a, const shard& s) { a.add(s.outcome, s.prob); }, "Brier");
 
         // evaluate: the union of the shards, compared with one process on the concatenation.
         {
@@ -184,8 +189,7 @@ int main(int argc, char** argv) {
                 expect(done <= total && done >= reported, "progress counts up");
                 reported = done;
             };
-            const auto dist =
-                heldout::mpi::evaluate_splits(comm, plan.splits(n), y, model, opt, hm::mse{}, hm::mae{});
+            const auto dist = heldout::mpi::evaluate_splits(comm, plan.splits(n), y, model, opt, hm::mse{}, hm::mae{});
             const auto one = heldout::evaluate_splits(plan.splits(n), y, model, hm::mse{}, hm::mae{});
             expect(describe(dist, hm::mse{}, hm::mae{}) == describe(one, hm::mse{}, hm::mae{}),
                    "evaluate_splits (k-fold) = one process");
@@ -199,8 +203,8 @@ int main(int argc, char** argv) {
                 return f;
             };
             const auto boot = heldout::bootstrap{.replicates = 12, .seed = 4};
-            const auto dist_b = heldout::mpi::evaluate_splits(comm, boot.splits(n), yb, prob, hm::brier_score{},
-                                                              hm::auc{});
+            const auto dist_b =
+                heldout::mpi::evaluate_splits(comm, boot.splits(n), yb, prob, hm::brier_score{}, hm::auc{});
             const auto one_b = heldout::evaluate_splits(boot.splits(n), yb, prob, hm::brier_score{}, hm::auc{});
             expect(describe(dist_b, hm::brier_score{}, hm::auc{}) == describe(one_b, hm::brier_score{}, hm::auc{}),
                    "evaluate_splits (bootstrap, apparent fit) = one process");
@@ -237,7 +241,8 @@ int main(int argc, char** argv) {
 
             // Different seeds on different ranks are refused everywhere.
             if (ranks > 1) {
-                const auto odd = heldout::repeated_kfold{.folds = 5, .repeats = 3, .seed = rank + 1 == ranks ? 10u : 9u};
+                const auto odd =
+                    heldout::repeated_kfold{.folds = 5, .repeats = 3, .seed = rank + 1 == ranks ? 10u : 9u};
                 bool refused = false;
                 try {
                     (void)heldout::mpi::evaluate_splits(comm, odd.splits(n), y, model, hm::mse{});
