@@ -7,6 +7,7 @@
 
 #include <cmath>
 #include <cstddef>
+#include <cstdint>
 #include <span>
 #include <string>
 #include <string_view>
@@ -49,6 +50,23 @@ inline void check_loaded_size(std::string_view field, std::size_t got, std::size
     if (got != want)
         fail_loaded(field, "has " + std::to_string(got) + " elements, " + std::string(what) + " needs " +
                                std::to_string(want));
+}
+
+/// Parameters read from bytes, checked as the constructor checks them: `check` throws the
+/// constructor's input_error, reported here as a load failure of `field`.
+template <class Check>
+void check_loaded_parameters(std::string_view field, Check&& check) {
+    try {
+        check();
+    } catch (const input_error& e) {
+        fail_loaded(field, std::string("out of range: ") + e.what());
+    }
+}
+
+/// A row count (u64) that must equal `want`.
+inline void check_loaded_count(std::string_view field, std::uint64_t got, std::uint64_t want) {
+    if (got != want)
+        fail_loaded(field, "is " + std::to_string(got) + ", the state holds " + std::to_string(want) + " rows");
 }
 
 } // namespace detail
