@@ -14,9 +14,9 @@
 #include <string_view>
 
 struct miss {
-    static constexpr std::string_view name = "miss";               // identity in bytes: "mean_loss/miss"
-    static constexpr std::string_view measure_name = "miss rate";  // the mean's printed name
-    double tolerance = 1.0;                                        // a parameter
+    static constexpr std::string_view name = "miss";              // identity in bytes: "mean_loss/miss"
+    static constexpr std::string_view measure_name = "miss rate"; // the mean's printed name
+    double tolerance = 1.0;                                       // a parameter
 
     bool operator==(const miss&) const = default; // the parameter is part of the identity
     std::string parameters_text() const { return "tolerance " + heldout::detail::number_text(tolerance); }
@@ -25,9 +25,13 @@ struct miss {
             throw heldout::input_error(std::string(who) + ": argument 'tolerance': must be finite and >= 0");
     }
     template <class F>
-    void visit_state(F&& f) { f(tolerance); }
+    void visit_state(F&& f) {
+        f(tolerance);
+    }
     template <class F>
-    void visit_state(F&& f) const { f(tolerance); }
+    void visit_state(F&& f) const {
+        f(tolerance);
+    }
 
     double value(double y, double f) const { return std::abs(y - f) > tolerance ? 1.0 : 0.0; }
 };

@@ -9,6 +9,7 @@
 #include <heldout/censored/truth.hpp>
 #include <heldout/core/error.hpp>
 #include <heldout/core/values.hpp>
+#include <heldout/detail/state_checks.hpp>
 
 #include <cmath>
 #include <cstddef>
@@ -108,6 +109,22 @@ public:
     }
 
     const M& measure() const noexcept { return m_; }
+
+    /// A state read from bytes: rows of one length, every row as add() would accept it.
+    void check_state() const {
+        check_loaded_size("event", event_.size(), time_.size(), "one per time");
+        check_loaded_size("prediction", pred_.size(), time_.size() * m_.width(), "the rows times the prediction width");
+        for (std::size_t i = 0; i < time_.size(); ++i) {
+            if (!std::isfinite(time_[i]) || time_[i] < 0)
+                fail_loaded("time", "element " + std::to_string(i) + " is negative or not finite");
+            if (event_[i] > 1)
+                fail_loaded("event", "element " + std::to_string(i) + " is not 0 or 1");
+        }
+        check_loaded_parameters("prediction", [&] {
+            for (std::size_t i = 0; i < pred_.size(); ++i)
+                m_.check_prediction(pred_[i], i / m_.width());
+        });
+    }
     std::size_t size() const noexcept { return time_.size(); }
 
     template <class F>
