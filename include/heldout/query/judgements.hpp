@@ -19,6 +19,7 @@
 #include <heldout/core/kinds.hpp>
 #include <heldout/core/values.hpp>
 #include <heldout/detail/columns.hpp>
+#include <heldout/detail/validate.hpp>
 
 #include <cstddef>
 #include <cstdint>
