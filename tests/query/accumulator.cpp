@@ -58,8 +58,8 @@ void check_shards(const M& measure, const data& d) {
     CHECK(shards[0].value() == one.value()); // bit for bit
     CHECK(std::equal(shards[0].per_query().begin(), shards[0].per_query().end(), one.per_query().begin(),
                      one.per_query().end()));
-    CHECK(std::equal(shards[0].skipped().begin(), shards[0].skipped().end(), one.skipped().begin(),
-                     one.skipped().end()));
+    CHECK(
+        std::equal(shards[0].skipped().begin(), shards[0].skipped().end(), one.skipped().begin(), one.skipped().end()));
     CHECK(shards[0].rows() == one.rows());
 }
 } // namespace

@@ -110,8 +110,9 @@ TEST_SUITE("query/evaluate_queries") {
         CHECK(z.mean == doctest::Approx(0.5).epsilon(1e-15));
         std::ostringstream oz;
         oz << z;
-        CHECK(oz.str() ==
-              "reciprocal rank (no relevant item = 0) 0.5 over 3 queries; queries with no relevant item count 0; 6 rows");
+        CHECK(
+            oz.str() ==
+            "reciprocal rank (no relevant item = 0) 0.5 over 3 queries; queries with no relevant item count 0; 6 rows");
         const auto d = evaluate_queries(m::dcg{.k = 1}, q, rel, s);
         CHECK(d.per_query.size() == 3);
         std::ostringstream od;

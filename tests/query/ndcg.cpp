@@ -89,8 +89,7 @@ TEST_SUITE("query/ndcg") {
                 using B = heldout_test::strict_order;
                 const double want_dcg = heldout_test::over_tie_orders(
                     c.scores, c.rel, [&](const std::vector<double>& o) { return B::dcg(o, k, exponential); });
-                CHECK(heldout_test::one_query(dcg{.k = k, .gain = gn}, c) ==
-                      doctest::Approx(want_dcg).epsilon(1e-13));
+                CHECK(heldout_test::one_query(dcg{.k = k, .gain = gn}, c) == doctest::Approx(want_dcg).epsilon(1e-13));
                 if (B::relevant(c.rel) == 0) {
                     CHECK(heldout_test::one_query(ndcg{.k = k, .gain = gn}, c) == -1);
                     continue;
@@ -102,5 +101,18 @@ TEST_SUITE("query/ndcg") {
             }
         }
         CHECK(compared > 3000);
+    }
+    TEST_CASE("tie-exact on longer queries (selection of the head), 1500 random queries of 10-40 items") {
+        std::mt19937 g(99);
+        using B = heldout_test::strict_order;
+        for (int t = 0; t < 1500; ++t) {
+            const auto c = heldout_test::random_long_query(g);
+            const std::size_t k = std::uniform_int_distribution<std::size_t>(1, 12)(g);
+            if (B::relevant(c.rel) == 0)
+                continue;
+            const double want = heldout_test::over_tie_orders(
+                c.scores, c.rel, [&](const std::vector<double>& o) { return B::ndcg(o, k, true); });
+            CHECK(heldout_test::one_query(ndcg{.k = k}, c) == doctest::Approx(want).epsilon(1e-13));
+        }
     }
 }

@@ -79,4 +79,15 @@ TEST_SUITE("query/precision_at") {
             CHECK(heldout_test::one_query(recall_at{.k = k}, c) == doctest::Approx(r).epsilon(1e-13));
         }
     }
+    TEST_CASE("tie-exact on longer queries (selection of the head), 1500 random queries of 10-40 items") {
+        std::mt19937 g(98);
+        using B = heldout_test::strict_order;
+        for (int t = 0; t < 1500; ++t) {
+            const auto c = heldout_test::random_long_query(g);
+            const std::size_t k = std::uniform_int_distribution<std::size_t>(1, 12)(g);
+            const double want = heldout_test::over_tie_orders(
+                c.scores, c.rel, [&](const std::vector<double>& o) { return B::precision(o, k); });
+            CHECK(heldout_test::one_query(precision_at{.k = k}, c) == doctest::Approx(want).epsilon(1e-13));
+        }
+    }
 }

@@ -3,6 +3,7 @@
 
 #include <heldout/query.hpp>
 
+#include <algorithm>
 #include <cstddef>
 #include <random>
 #include <vector>
@@ -25,6 +26,26 @@ inline small_query random_small_query(std::mt19937& g) {
         q.rel.push_back(static_cast<double>(std::uniform_int_distribution<int>(0, 3)(g)));
         q.id.push_back(0);
     }
+    return q;
+}
+
+/// n in 10..40 items with distinct scores but for two tie groups of 2..4 items (at most 576
+/// orders), relevance 0..3: long enough for the selection path of a small cutoff.
+inline small_query random_long_query(std::mt19937& g) {
+    small_query q;
+    const std::size_t n = std::uniform_int_distribution<std::size_t>(10, 40)(g);
+    for (std::size_t i = 0; i < n; ++i) {
+        q.scores.push_back(static_cast<double>(i) + 0.5);
+        q.rel.push_back(static_cast<double>(std::uniform_int_distribution<int>(0, 5)(g) / 2));
+        q.id.push_back(0);
+    }
+    for (int group = 0; group < 2; ++group) {
+        const std::size_t size = std::uniform_int_distribution<std::size_t>(2, 4)(g);
+        const std::size_t at = std::uniform_int_distribution<std::size_t>(0, n - 1)(g);
+        for (std::size_t j = 0; j < size; ++j)
+            q.scores[std::uniform_int_distribution<std::size_t>(0, n - 1)(g)] = q.scores[at];
+    }
+    std::shuffle(q.scores.begin(), q.scores.end(), g);
     return q;
 }
 

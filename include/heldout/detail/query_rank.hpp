@@ -130,6 +130,21 @@ void group_queries(std::span<const Q> q, query_groups& g, std::string_view who) 
     g.ids = std::move(ids);
 }
 
+/// Whether every value is finite, in one branch-free (vectorisable) pass: x - x is 0 for a
+/// finite x and NaN otherwise.
+template <class T>
+bool all_finite(std::span<const T> v) noexcept {
+    if constexpr (std::is_floating_point_v<T>) {
+        bool ok = true;
+        for (const T x : v)
+            ok &= (x - x) == T(0);
+        return ok;
+    } else {
+        (void)v;
+        return true;
+    }
+}
+
 // ---------------------------------------------------------------- one query's ranking
 
 /// An item at the head of a ranking.
@@ -195,6 +210,42 @@ std::size_t relevant_count(std::span<const R> rel) noexcept {
     return c;
 }
 
+/// The K-th largest score (0 < K < n). A small cutoff keeps the K best in a sorted buffer: one
+/// pass, and for scores in random order only about K ln(n/K) insertions; a large one selects
+/// with std::nth_element (linear time).
+template <class S>
+double kth_largest(std::span<const S> s, std::size_t K, query_workspace& ws) {
+    const std::size_t n = s.size();
+    if (K <= 32 && 4 * K <= n) {
+        S buf[32]; // compared in the scores' own type: no conversion in the loop
+        for (std::size_t i = 0; i < K; ++i) {
+            const S x = s[i];
+            std::size_t j = i;
+            for (; j > 0 && buf[j - 1] < x; --j)
+                buf[j] = buf[j - 1];
+            buf[j] = x;
+        }
+        S t = buf[K - 1];
+        for (std::size_t i = K; i < n; ++i) {
+            const S x = s[i];
+            if (x > t) {
+                std::size_t j = K - 1;
+                for (; j > 0 && buf[j - 1] < x; --j)
+                    buf[j] = buf[j - 1];
+                buf[j] = x;
+                t = buf[K - 1];
+            }
+        }
+        return static_cast<double>(t);
+    }
+    ws.scores.resize(n);
+    for (std::size_t i = 0; i < n; ++i)
+        ws.scores[i] = static_cast<double>(s[i]);
+    std::nth_element(ws.scores.begin(), ws.scores.begin() + static_cast<std::ptrdiff_t>(K - 1), ws.scores.end(),
+                     std::greater<double>());
+    return ws.scores[K - 1];
+}
+
 /// Forms tie blocks from items sorted by decreasing score, starting at position `start`.
 inline void blocks_of_sorted(std::span<const ranked_item> items, std::size_t start, std::vector<tie_block>& out) {
     for (std::size_t i = 0; i < items.size();) {
@@ -231,12 +282,7 @@ void head_blocks(std::span<const S> s, std::span<const R> rel, std::size_t K, bo
     }
     // t = the K-th largest score; the items above it are fewer than K, and every item equal
     // to t belongs to the block that straddles (or ends at) position K.
-    ws.scores.resize(n);
-    for (std::size_t i = 0; i < n; ++i)
-        ws.scores[i] = static_cast<double>(s[i]);
-    std::nth_element(ws.scores.begin(), ws.scores.begin() + static_cast<std::ptrdiff_t>(K - 1), ws.scores.end(),
-                     std::greater<double>());
-    const double t = ws.scores[K - 1];
+    const double t = kth_largest(s, K, ws);
     tie_block edge;
     for (std::size_t i = 0; i < n; ++i) {
         const double x = static_cast<double>(s[i]);
@@ -280,6 +326,25 @@ inline double expected_dcg(std::span<const tie_block> blocks, std::size_t K, que
 /// IDCG@K: the DCG of the query's gains sorted decreasingly (ties do not matter there).
 template <class R>
 double ideal_dcg(std::span<const R> rel, std::size_t K, gain g, query_workspace& ws) {
+    if constexpr (std::is_integral_v<R>) {
+        // Small integer relevance: a histogram replaces the selection (the ideal order is by value).
+        std::size_t count[64] = {};
+        bool small = true;
+        for (const R r : rel) {
+            const auto u = static_cast<std::uint64_t>(r);
+            small &= u < 64;
+            count[u & 63u] += 1;
+        }
+        if (small) {
+            const double* d = ws.discounts(K);
+            double total = 0;
+            std::size_t p = 0;
+            for (std::size_t v = 63; v > 0 && p < K; --v)
+                for (std::size_t c = count[v]; c > 0 && p < K; --c, ++p)
+                    total += item_gain(g, static_cast<R>(v)) * d[p];
+            return total;
+        }
+    }
     ws.gains.clear();
     for (const R r : rel)
         if (is_relevant(r))
@@ -298,35 +363,37 @@ double ideal_dcg(std::span<const R> rel, std::size_t K, gain g, query_workspace&
     return total;
 }
 
-/// E[number of relevant items among the top K] (0 < K), in O(n) by selection.
+/// E[number of relevant items among the top K] (0 < K) and the number of relevant items of
+/// the query, in O(n) by selection.
+struct top_count {
+    double in_top = 0;
+    std::size_t relevant = 0;
+};
+
 template <class S, class R>
-double expected_relevant_in_top(std::span<const S> s, std::span<const R> rel, std::size_t K, query_workspace& ws) {
+top_count expected_relevant_in_top(std::span<const S> s, std::span<const R> rel, std::size_t K, query_workspace& ws) {
     const std::size_t n = s.size();
-    if (K >= n)
-        return static_cast<double>(relevant_count(rel));
-    ws.scores.resize(n);
-    for (std::size_t i = 0; i < n; ++i)
-        ws.scores[i] = static_cast<double>(s[i]);
-    std::nth_element(ws.scores.begin(), ws.scores.begin() + static_cast<std::ptrdiff_t>(K - 1), ws.scores.end(),
-                     std::greater<double>());
-    const double t = ws.scores[K - 1];
-    std::size_t above = 0, relevant_above = 0, at = 0, relevant_at = 0;
+    if (K >= n) {
+        const std::size_t r = relevant_count(rel);
+        return {static_cast<double>(r), r};
+    }
+    const double t = kth_largest(s, K, ws);
+    std::size_t above = 0, relevant_above = 0, at = 0, relevant_at = 0, relevant = 0;
     for (std::size_t i = 0; i < n; ++i) {
         const double x = static_cast<double>(s[i]);
         const std::size_t r = is_relevant(rel[i]) ? 1u : 0u;
-        if (x > t) {
-            ++above;
-            relevant_above += r;
-        } else if (x == t) {
-            ++at;
-            relevant_at += r;
-        }
+        const std::size_t gt = x > t ? 1u : 0u, eq = x == t ? 1u : 0u;
+        above += gt;
+        relevant_above += gt & r;
+        at += eq;
+        relevant_at += eq & r;
+        relevant += r;
     }
     // The block of t holds positions above+1 .. above+at; K - above of them are in the top K.
     const double share =
         relevant_at == 0 ? 0.0
                          : static_cast<double>(relevant_at) * static_cast<double>(K - above) / static_cast<double>(at);
-    return static_cast<double>(relevant_above) + share;
+    return {static_cast<double>(relevant_above) + share, relevant};
 }
 
 /// E[1 / rank of the first relevant item]; the query has a relevant item.

@@ -40,9 +40,11 @@
 #include <heldout/query/gains.hpp>
 #include <heldout/query/judgements.hpp>
 
+#include <algorithm>
 #include <cmath>
 #include <cstddef>
 #include <cstdint>
+#include <limits>
 #include <optional>
 #include <span>
 #include <string>
@@ -161,7 +163,8 @@ private:
         m_.validate(who);
         if (n == 0)
             return;
-        detail::check_finite(who, "scores", s);
+        if (!detail::all_finite(s)) // a vectorised pass first; the slow one only to name the row
+            detail::check_finite(who, "scores", s);
         check_relevance(who, truth.relevance);
         if (weighted)
             detail::check_weights(who, w);
@@ -209,6 +212,24 @@ private:
         bool exponential = false;
         if constexpr (requires { m_.gain; })
             exponential = m_.gain == gain::exponential;
+        if constexpr (std::is_integral_v<R>) {
+            // Small unsigned types cannot be wrong; others are scanned for their extremes first.
+            if constexpr (std::is_unsigned_v<R> && std::numeric_limits<R>::max() <= 1023)
+                return;
+            R lo = rel.empty() ? R(0) : rel[0], hi = lo;
+            for (const R r : rel) {
+                lo = std::min(lo, r);
+                hi = std::max(hi, r);
+            }
+            if (lo >= R(0) && (!exponential || static_cast<double>(hi) <= max_exponential_relevance))
+                return;
+        } else {
+            bool ok = true;
+            for (const R r : rel)
+                ok &= r >= R(0) && r <= R(1e300); // false for NaN and infinity too
+            if (ok && !exponential)
+                return;
+        }
         for (std::size_t i = 0; i < rel.size(); ++i) {
             if constexpr (std::is_floating_point_v<R>) {
                 if (!std::isfinite(rel[i]))

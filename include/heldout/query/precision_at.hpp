@@ -54,7 +54,7 @@ struct precision_at {
     void validate(std::string_view who) const { detail::check_cutoff(who, k); }
     template <class S, class R>
     std::optional<double> of_query(std::span<const S> s, std::span<const R> rel, detail::query_workspace& ws) const {
-        return detail::expected_relevant_in_top(s, rel, std::min(k, s.size()), ws) / static_cast<double>(k);
+        return detail::expected_relevant_in_top(s, rel, std::min(k, s.size()), ws).in_top / static_cast<double>(k);
     }
 };
 
@@ -77,10 +77,10 @@ struct recall_at {
     void validate(std::string_view who) const { detail::check_cutoff(who, k); }
     template <class S, class R>
     std::optional<double> of_query(std::span<const S> s, std::span<const R> rel, detail::query_workspace& ws) const {
-        const std::size_t relevant = detail::relevant_count(rel);
-        if (relevant == 0)
+        const auto c = detail::expected_relevant_in_top(s, rel, std::min(k, s.size()), ws);
+        if (c.relevant == 0)
             return std::nullopt;
-        return detail::expected_relevant_in_top(s, rel, std::min(k, s.size()), ws) / static_cast<double>(relevant);
+        return c.in_top / static_cast<double>(c.relevant);
     }
 };
 
