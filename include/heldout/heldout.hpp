@@ -12,5 +12,6 @@
 #include <heldout/loss.hpp>
 #include <heldout/measure.hpp>
 #include <heldout/plan.hpp>
+#include <heldout/query.hpp>
 #include <heldout/report.hpp>
 #include <heldout/stream.hpp>

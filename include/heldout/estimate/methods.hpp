@@ -41,7 +41,8 @@ enum class need : std::uint32_t {
     lower_is_better = 1u << 9,  ///< an error (the .632 rules estimate errors)
     apparent = 1u << 10,        ///< the apparent (resubstitution) result was recorded
     five_by_two = 1u << 11,     ///< exactly the 10 splits of heldout::five_by_two, in order
-    resamplable = 1u << 12      ///< per-row values, or a weighted add with kept predictions (the bootstrap)
+    resamplable = 1u << 12,     ///< per-row values, or a weighted add with kept predictions (the bootstrap)
+    query_values = 1u << 13     ///< per-query values of two rankers on the same queries (heldout::compare_queries)
 };
 constexpr need operator|(need a, need b) noexcept {
     return static_cast<need>(static_cast<std::uint32_t>(a) | static_cast<std::uint32_t>(b));
@@ -69,6 +70,7 @@ struct record_shape {
     bool five_by_two = false;                   ///< the 10 splits of five_by_two, in order
     bool kept_predictions = true;
     bool apparent = false;
+    bool query_values = false; ///< per-query values of a query measure (compare_queries), not splits
 };
 
 /// What the measure offers, as far as methods care.
@@ -156,11 +158,13 @@ enum class method_id : unsigned char {
     mcnemar_corrected,
     delong,
     bootstrap_percentile,
-    bootstrap_bca
+    bootstrap_bca,
+    query_t,
+    randomization
 };
 
 /// The paired comparisons of two models, indexed by method_id (automatic first).
-inline constexpr std::array<method_info, 12> methods{{
+inline constexpr std::array<method_info, 14> methods{{
     {"automatic", "automatic", "", "the valid default for what was recorded (see the rules in docs/compare.md)",
      need::none, true},
     {"corrected_t", "corrected t",
@@ -196,6 +200,14 @@ inline constexpr std::array<method_info, 12> methods{{
     {"bootstrap_bca", "paired BCa bootstrap", "Efron (1987), JASA 82:171-185; Davison & Hinkley (1997), 4.2",
      "BCa interval of the difference over the same resamples; Monte-Carlo p-value",
      need::one_test_set | need::resamplable, true},
+    {"query_t", "paired t over queries", "Student (1908); Smucker, Allan & Carterette (2007), CIKM",
+     "paired t on the per-query differences of two rankers on the same queries (heldout::compare_queries)",
+     need::query_values, true},
+    {"randomization", "paired randomization (sign flip) over queries",
+     "Fisher (1935); Smucker, Allan & Carterette (2007), CIKM; Phipson & Smyth (2010)",
+     "share of sign vectors s with |sum s_q d_q| >= |sum d_q|: exact up to 20 queries, else seeded Monte Carlo; "
+     "t interval of the mean difference (heldout::compare_queries)",
+     need::query_values, true},
 }};
 
 /// The table row of a paired method.
@@ -240,6 +252,8 @@ inline std::string_view need_text(need n) {
     case need::resamplable:
         return "it resamples rows: it needs per-row values (cap::row_losses), or a weighted add and the kept "
                "predictions of both models";
+    case need::query_values:
+        return "it compares the per-query values of two rankers (heldout::compare_queries), not recorded splits";
     case need::none:
         break;
     }
@@ -268,6 +282,7 @@ inline std::vector<need> unmet_needs(need needs, const record_shape& r, const me
     check(need::apparent, r.apparent);
     check(need::five_by_two, r.five_by_two);
     check(need::resamplable, f.row_losses || (f.weighted_add && r.kept_predictions));
+    check(need::query_values, r.query_values);
     return out;
 }
 
