@@ -27,7 +27,7 @@ TEST_SUITE("estimate/binomial_interval") {
         CHECK(w.upper == doctest::Approx(centre + half).epsilon(1e-14));
         CHECK(w.estimate == 0.3);
         CHECK(w.level == 0.95);
-        // The same interval written as in Wilson 1927; Clopper & Pearson 1934 (Wilson 1927).
+        // The same interval written as in Wilson (1927).
         const double p = 0.3, n = 10;
         const double c2 = (p + z * z / (2 * n)) / (1 + z * z / n);
         const double h2 = z * std::sqrt(p * (1 - p) / n + z * z / (4 * n * n)) / (1 + z * z / n);
@@ -50,7 +50,7 @@ TEST_SUITE("estimate/binomial_interval") {
         CHECK(clopper_pearson_interval(0, 10).upper == doctest::Approx(1 - std::pow(0.025, 0.1)).epsilon(1e-13));
         CHECK(clopper_pearson_interval(10, 10).lower == doctest::Approx(std::pow(0.025, 0.1)).epsilon(1e-13));
     }
-    TEST_CASE("Agresti-Coull is truncated to [0, 1] at 0/20 and 1/29 (Wilson 1927; Clopper & Pearson 1934)") {
+    TEST_CASE("Agresti-Coull is truncated to [0, 1] at 0/20 and 1/29 (Agresti & Coull 1998)") {
         // Untruncated lower bounds are negative there (Agresti & Coull 1998 formula).
         const double z = 1.959963984540054;
         for (auto [k, n] : {std::pair{0, 20}, std::pair{1, 29}}) {
@@ -84,7 +84,7 @@ TEST_SUITE("estimate/binomial_interval") {
             CHECK(heldout_test::close(w.upper, wh[i], 1e-12, 1e-15));
             const auto e = clopper_pearson_interval(kk, nn, lev[i]);
             // scipy method='exact' is a root search (~1e-12 absolute); scipy.stats.beta.ppf is the
-            // beta-quantile form of Wilson 1927; Clopper & Pearson 1934 (Clopper & Pearson 1934).
+            // beta-quantile form of Clopper & Pearson (1934).
             CHECK(std::abs(e.lower - el[i]) <= 2e-12);
             CHECK(std::abs(e.upper - eh[i]) <= 2e-12);
             CHECK(heldout_test::close(e.lower, bl[i], 1e-12, 1e-300));

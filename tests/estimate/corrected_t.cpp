@@ -27,12 +27,12 @@ TEST_SUITE("estimate/corrected_t") {
         CHECK(heldout_test::close(n.upper, 0.0405451882066, 1e-10));
         CHECK(n.correction == 0);
     }
-    TEST_CASE("Nadeau & Bengio 2003 BF: 3 x 5-fold, n_test/n_train = 1/4 (Bouckaert & Frank 2004)") {
+    TEST_CASE("Bouckaert & Frank 2004 check: 3 x 5-fold, n_test/n_train = 1/4 (Bouckaert & Frank 2004)") {
         const std::vector<double> x{0.03, 0.01, 0.04, 0.02, 0.00, 0.02, 0.05, 0.01,
                                     0.03, 0.02, 0.04, 0.00, 0.03, 0.01, 0.02};
         const auto c = heldout::corrected_resampled_t(x, 4, 1);
         CHECK(heldout_test::close(c.mean, 0.022, 1e-13));
-        CHECK(heldout_test::close(c.statistic, 2.65307013918, 1e-11)); // R 4.2.2 (Nadeau & Bengio 2003)
+        CHECK(heldout_test::close(c.statistic, 2.65307013918, 1e-11)); // R 4.2.2 (Bouckaert & Frank 2004)
         CHECK(c.df == 14);
         CHECK(heldout_test::close(c.p_value, 0.0189153841296, 1e-10)); // R 4.2.2 pt
     }
