@@ -23,7 +23,7 @@ std::vector<std::size_t> v(std::span<const std::size_t> s) { return {s.begin(), 
 } // namespace
 
 TEST_SUITE("plan/purged_kfold") {
-    TEST_CASE("Tashman 2000; López de Prado 2018, worked by hand worked case: t0 = i, t1 = i + 2, test {4, 5}") {
+    TEST_CASE("López de Prado 2018 ch. 7, worked by hand: t0 = i, t1 = i + 2, test {4, 5}") {
         // López de Prado (2018), Advances in Financial Machine Learning, Ch. 7; check values
         // worked by hand from the definition in the paper: purging leaves {0, 1, 8, 9}; with embargo 1 (span
         // extended to [4, 8]) also 8 goes, leaving {0, 1, 9}.
