@@ -57,7 +57,7 @@ TEST_SUITE("measure/classification_error") {
     }
 
     TEST_CASE("check value: accuracy 0.85 for TP = 20, FN = 10, FP = 5, TN = 65") {
-        // Binary check of methods.md section 7 (self-written reference of the count formula):
+        // Binary check of worked by hand from the published formula (self-written reference of the count formula):
         // accuracy = (20 + 65) / 100.
         std::vector<int> y, f;
         auto put = [&](int t, int p, int n) {

@@ -12,7 +12,7 @@
 //   Eigen::MatrixXd L(2, 3);  L << 1, -1, 0,  0, 1, -1;       // H0: all three AUCs equal
 //   auto chi = c.test(L);                                     // chi.statistic, chi.df, chi.p_value
 //
-// Method (methods.md §3.3-3.4). Positives X_i (m of them), negatives Y_j (n). Structural
+// Method (DeLong et al. 1988; Sun & Xu 2014). Positives X_i (m of them), negatives Y_j (n). Structural
 // components V10(X_i) = (#{Y < X_i} + #{Y = X_i}/2)/n and V01(Y_j) = (#{X > Y_j} + #{X = Y_j}/2)/m,
 // which are Sun & Xu's (T_Z - T_X)/n and 1 - (T_Z - T_Y)/m; both come from one sort of the
 // pooled scores (positives and negatives tied to each other fall in one tie group). Then

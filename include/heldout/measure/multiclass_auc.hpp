@@ -6,7 +6,7 @@
 //   heldout::measure::multiclass_auc ovr{heldout::measure::multiclass_auc_method::one_vs_rest_weighted};
 //   double o = heldout::evaluate(ovr, truth, heldout::rows(flat, 3), weights);
 //
-// Hand & Till (2001, Machine Learning 45:171-186), methods.md §5: for classes i != j, A(i|j) is
+// Hand & Till (2001, Machine Learning 45:171-186): for classes i != j, A(i|j) is
 // the two-class AUC of class i against class j using column i as the score, over the rows of
 // those two classes only (ties one half); A(i, j) = (A(i|j) + A(j|i)) / 2 and
 // M = 2 / (c (c - 1)) sum_{i<j} A(i, j). M does not depend on the class priors.
