@@ -43,13 +43,16 @@ TEST_SUITE("estimate/bootstrap_632") {
         const double R = e.relative_overfitting;
         CHECK(
             heldout_test::close(e.err_632_plus, e.err_632 + (0.35 - 0.2) * 0.368 * 0.632 * R / (1 - 0.368 * R), 1e-14));
-        // Err1 = 0.55 > gamma: clipped to 0.48, R' = 1, w = 1
+        // Err1 = 0.55 > gamma (issue 16's worked case, by hand from Efron & Tibshirani 1997
+        // eq. (32) with Err1' = min(Err1, gamma) and R' clipped to [0, 1]): Err1' = 0.48, R' = 1,
+        // .632 = 0.368 0.2 + 0.632 0.55 = 0.4212, correction (0.48 - 0.2) 0.368 0.632 / 0.632 = 0.10304,
+        // .632+ = 0.52424. The weighted form (1 - w) err + w Err1' would give 0.48 here.
         e = heldout::bootstrap_632(0.2, 0.55, g);
         CHECK(e.leave_one_out_capped == 0.48);
         CHECK(e.relative_overfitting == 1.0);
         CHECK(heldout_test::close(e.weight, 1.0, 1e-15));
-        CHECK(heldout_test::close(e.err_632_plus, 0.48, 1e-15));
         CHECK(heldout_test::close(e.err_632, 0.4212, 1e-14));
+        CHECK(heldout_test::close(e.err_632_plus, 0.52424, 1e-14));
         // Err1 = 0.15 < err: R' = 0, w = 0.632, .632+ = .632 = 0.1684
         e = heldout::bootstrap_632(0.2, 0.15, g);
         CHECK(e.relative_overfitting == 0.0);
@@ -59,6 +62,48 @@ TEST_SUITE("estimate/bootstrap_632") {
         // gamma <= err forces R' = 0 (Efron & Tibshirani 1997 definition)
         e = heldout::bootstrap_632(0.5, 0.6, 0.45);
         CHECK(e.relative_overfitting == 0.0);
+        // methods.md section 11: err = 0.3, gamma = 0.25, Err1 = 0.4. R' = 0, so eq. (32) gives
+        // .632 = 0.368 0.3 + 0.632 0.4 = 0.3632; the weighted form would give 0.2684 < err.
+        e = heldout::bootstrap_632(0.3, 0.4, 0.25);
+        CHECK(e.relative_overfitting == 0.0);
+        CHECK(heldout_test::close(e.err_632_plus, 0.3632, 1e-14));
+        CHECK(e.err_632_plus >= e.apparent);
+    }
+    TEST_CASE("eq. (32) boundaries: never below the apparent error when Err1 >= err; .632 <= .632+ <= Err1 bound") {
+        // Err1 == err: R' = 0, .632+ = .632 = err.
+        auto e = heldout::bootstrap_632(0.25, 0.25, 0.5);
+        CHECK(e.relative_overfitting == 0.0);
+        CHECK(heldout_test::close(e.err_632_plus, 0.25, 1e-15));
+        // gamma == err (no room to overfit): R' = 0 by definition, no division by zero.
+        e = heldout::bootstrap_632(0.3, 0.5, 0.3);
+        CHECK(e.relative_overfitting == 0.0);
+        CHECK(heldout_test::close(e.err_632_plus, 0.368 * 0.3 + 0.632 * 0.5, 1e-15));
+        // Err1 == gamma: R' = 1 exactly, both forms agree: .632+ = Err1' = gamma.
+        e = heldout::bootstrap_632(0.1, 0.4, 0.4);
+        CHECK(e.relative_overfitting == 1.0);
+        CHECK(heldout_test::close(e.err_632_plus, 0.4, 1e-15));
+        // apparent 0 and Err1 far above gamma: .632 = 0.632 0.9 = 0.5688, correction 0.368 0.5 = 0.184.
+        e = heldout::bootstrap_632(0.0, 0.9, 0.5);
+        CHECK(heldout_test::close(e.err_632_plus, 0.5688 + 0.184, 1e-14));
+        // A grid over (err, Err1, gamma) in [0, 1]^3: whenever Err1 >= err the estimate is at least
+        // err and at least .632; it never exceeds max(.632, the value with R' = 1).
+        for (int a = 0; a <= 20; ++a)
+            for (int b = 0; b <= 20; ++b)
+                for (int c = 0; c <= 20; ++c) {
+                    const double err = a / 20.0, e1 = b / 20.0, gam = c / 20.0;
+                    e = heldout::bootstrap_632(err, e1, gam);
+                    CAPTURE(err);
+                    CAPTURE(e1);
+                    CAPTURE(gam);
+                    CHECK(e.relative_overfitting >= 0.0);
+                    CHECK(e.relative_overfitting <= 1.0);
+                    if (e1 >= err) {
+                        CHECK(e.err_632_plus >= err - 1e-15);
+                        CHECK(e.err_632_plus >= e.err_632 - 1e-15);
+                    } else {
+                        CHECK(e.err_632_plus == e.err_632); // R' = 0 (Efron & Tibshirani 1997)
+                    }
+                }
     }
     TEST_CASE("Efron & Tibshirani 1997, worked by hand OOB bookkeeping: Err1 = 0.625, pooled = 0.6, .632 = 0.487") {
         // b1 = {0,0,1,1}: OOB {2,3}; b2 = {1,1,3,3}: OOB {0,2}; b3 = {0,2,3,3}: OOB {1}.

@@ -184,7 +184,9 @@ def p632(err, e1, g):
     e1p = min(e1, g)
     R = (e1p - err) / (g - err) if (e1 > err and g > err) else 0.0
     w = 0.632 / (1 - 0.368 * R)
-    return [0.368 * err + 0.632 * e1, e1p, R, w, (1 - w) * err + w * e1p]
+    e632 = 0.368 * err + 0.632 * e1
+    # Efron & Tibshirani 1997 eq. (32): correction on the unclipped .632 (methods.md section 11)
+    return [e632, e1p, R, w, e632 + (e1p - err) * 0.368 * 0.632 * R / (1 - 0.368 * R)]
 
 
 cases = [(0.1, 0.3, 0.5), (0.2, 0.6, 0.5), (0.3, 0.2, 0.5), (0.4, 0.5, 0.3), (0.0, 0.25, 0.25)]

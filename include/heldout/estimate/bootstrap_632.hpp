@@ -25,7 +25,13 @@
 //    double sum (no_information_error).
 //  * Err^(1)' = min(Err^(1), gamma); R = (Err^(1)' - apparent)/(gamma - apparent) when
 //    Err^(1) > apparent and gamma > apparent, else 0 (so R is in [0, 1]);
-//    w = 0.632/(1 - 0.368 R); .632+ = (1 - w) apparent + w Err^(1)'.
+//    .632+ = .632 + (Err^(1)' - apparent) 0.368 0.632 R / (1 - 0.368 R): Efron & Tibshirani
+//    1997 eq. (32), as recalled (the paper could not be reached from here; two independent
+//    recollections agree). The correction is added to the *unclipped* .632 estimate. The
+//    weighted form (1 - w) apparent + w Err^(1)', w = 0.632/(1 - 0.368 R), equals it only when
+//    Err^(1) <= gamma; when Err^(1) > gamma it drops to gamma, and when gamma < apparent <
+//    Err^(1) it falls below the apparent error, which eq. (32) never does (it is at least
+//    .632 >= apparent whenever Err^(1) >= apparent). weight is still reported as w.
 #pragma once
 
 #include <heldout/core/loss.hpp>
@@ -130,7 +136,7 @@ struct bootstrap_632_result {
     double relative_overfitting = 0; ///< R' in [0, 1]
     double weight = 0;               ///< w = 0.632 / (1 - 0.368 R')
     double err_632 = 0;              ///< 0.368 err + 0.632 Err^(1)
-    double err_632_plus = 0;         ///< (1 - w) err + w Err^(1)'
+    double err_632_plus = 0;         ///< .632 + (Err^(1)' - err) 0.368 0.632 R'/(1 - 0.368 R'), E&T 1997 eq. (32)
 };
 
 /// .632 and .632+ from apparent error, leave-one-out bootstrap error and no-information error.
@@ -154,7 +160,10 @@ inline bootstrap_632_result bootstrap_632(double apparent, double leave_one_out,
                                  ? (r.leave_one_out_capped - apparent) / (no_information - apparent)
                                  : 0.0;
     r.weight = w0 / (1.0 - w1 * r.relative_overfitting);
-    r.err_632_plus = (1.0 - r.weight) * apparent + r.weight * r.leave_one_out_capped;
+    // eq. (32): the correction goes on the unclipped .632 (see the header comment for why
+    // the weighted form is not used). R = 0 leaves .632 as it is.
+    r.err_632_plus = r.err_632 + (r.leave_one_out_capped - apparent) * w1 * w0 * r.relative_overfitting /
+                                     (1.0 - w1 * r.relative_overfitting);
     return r;
 }
 
