@@ -212,12 +212,12 @@ TEST_SUITE("stream/state_checks") {
         check_merge_refused<input::probability>(hm::cross_entropy{1e-12}, hm::cross_entropy{1e-15});
         check_merge_refused<input::rows3>(hm::multiclass_cross_entropy{1e-9}, hm::multiclass_cross_entropy{0});
         check_merge_refused<input::probability>(hm::calibration_error{.bins = 10}, hm::calibration_error{.bins = 15});
-        check_merge_refused<input::probability>(
-            hm::calibration_error{}, hm::calibration_error{.binning = hm::bin_rule::equal_count});
-        check_merge_refused<input::probability>(
-            hm::calibration_error{}, hm::calibration_error{.variant = hm::calibration_variant::top_label});
-        check_merge_refused<input::probability>(
-            hm::calibration_error{}, hm::calibration_error{.statistic = hm::calibration_statistic::maximum});
+        check_merge_refused<input::probability>(hm::calibration_error{},
+                                                hm::calibration_error{.binning = hm::bin_rule::equal_count});
+        check_merge_refused<input::probability>(hm::calibration_error{},
+                                                hm::calibration_error{.variant = hm::calibration_variant::top_label});
+        check_merge_refused<input::probability>(hm::calibration_error{},
+                                                hm::calibration_error{.statistic = hm::calibration_statistic::maximum});
         check_merge_refused<input::rows3>(hm::multiclass_calibration_error{.bins = 8},
                                           hm::multiclass_calibration_error{.bins = 9});
         check_merge_refused<input::rows3>(hm::multiclass_auc{},
