@@ -8,7 +8,7 @@ cd "$(dirname "$0")/.."
 mode=${1:-test}
 
 packages=(cmake ninja-build g++ libeigen3-dev libboost-math-dev doctest-dev libbenchmark-dev
-          python3-scipy python3-numpy libcli11-dev openmpi-bin libopenmpi-dev)
+          python3-scipy python3-numpy r-base-core r-cran-survival libcli11-dev openmpi-bin libopenmpi-dev)
 missing=()
 for p in "${packages[@]}"; do
     dpkg-query -W -f='${Status}' "$p" 2>/dev/null | grep -q "install ok installed" || missing+=("$p")

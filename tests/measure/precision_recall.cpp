@@ -290,8 +290,7 @@ TEST_SUITE("measure/precision_recall") {
         const auto bytes = heldout::serialize(p);
         CHECK_THROWS_WITH_AS(
             (void)heldout::deserialize<heldout::measure::table_accumulator<recall>>(bytes),
-            "heldout::deserialize: argument 'bytes': the state is of measure precision with 2 fixed classes, not of "
-            "measure recall",
+            "heldout::deserialize: argument 'bytes': the bytes hold the state of 'precision', not of 'recall'",
             heldout::input_error);
         // a default accumulator is that of the default measure
         heldout::measure::table_accumulator<precision> d;

@@ -4,13 +4,15 @@
 //   // two aggregators filled on the same splits (same plan, same seed, same rows)
 //   heldout::comparison c = heldout::compare(agg_a, agg_b, heldout::measure::mse{});
 //   std::cout << c << '\n';
-//   // MSE A - B = 0.0123 [-0.0021, 0.0267] 95%, corrected t (Bouckaert-Frank) 1.71, df 99, p = 0.0903; 100 splits,
-//   n=5000 auto f = heldout::compare(agg_a, agg_b, mse, heldout::paired::five_by_two_f);    // 5x2cv plan auto m =
-//   heldout::compare(error, truth, labels_a, labels_b, heldout::paired::mcnemar_exact); auto d =
-//   heldout::compare(heldout::measure::auc{}, truth, scores_a, scores_b);  // DeLong auto b = heldout::compare(m,
-//   truth, f_a, f_b, heldout::paired::bootstrap_bca(5000, 7)); auto all = heldout::compare_all_pairs(models, mse,
-//   heldout::paired::automatic, 0.95, {"ridge", "tree", "knn"}); heldout::write_csv(std::cout, all);   // Holm-adjusted
-//   p-values in adjusted_p_value
+//   // MSE A - B = 0.0123 [-0.0021, 0.0267] 95%, corrected t (Bouckaert-Frank) 1.71, df 99,
+//   //   p = 0.0903; 100 splits, n=5000
+//   auto f = heldout::compare(agg_a, agg_b, mse, heldout::paired::five_by_two_f);   // 5x2cv plan
+//   auto m = heldout::compare(error, truth, labels_a, labels_b, heldout::paired::mcnemar_exact);
+//   auto d = heldout::compare(heldout::measure::auc{}, truth, scores_a, scores_b);   // DeLong
+//   auto b = heldout::compare(m, truth, f_a, f_b, heldout::paired::bootstrap_bca(5000, 7));
+//   auto all = heldout::compare_all_pairs(models, mse, heldout::paired::automatic, 0.95,
+//                                         {"ridge", "tree", "knn"});
+//   heldout::write_csv(std::cout, all);   // Holm-adjusted p-values in adjusted_p_value
 //
 // `difference` is always measure(A) - measure(B): with an error (lower is better) a positive
 // difference favours B. Methods, by their published names (heldout::paired):

@@ -31,8 +31,12 @@
 //                         re-adding weighted rows.
 //   cap::serialisable     the measure has `static constexpr std::string_view key` (its
 //                         identity in bytes, stable across versions and machines) and its
-//                         accumulator has `measure()` and visit_state (const and non-const),
-//                         checking what it reads: serialize / deserialize(bytes, m).
+//                         accumulator has `measure()`, visit_state (const and non-const) and
+//                         `void check_state() const`, which deserialize calls once every field
+//                         is read: each invariant of the loaded fields (labels < classes, row
+//                         lengths, weights as long as values, non-negative counts, finite
+//                         sums, parameters in range) or an input_error naming the field
+//                         (detail::fail_loaded). serialize / deserialize(bytes, m).
 #pragma once
 
 #include <heldout/core/config.hpp>
@@ -61,7 +65,7 @@ struct case_components {};
 struct whole_set {};
 /// Its own bootstrap engine: `resampler(truth, prediction, who)`.
 struct resampling {};
-/// Bytes that cross machines: `key`, the accumulator's `measure()` and `visit_state`.
+/// Bytes that cross machines: `key`, the accumulator's `measure()`, `visit_state` and `check_state()`.
 struct serialisable {};
 } // namespace cap
 

@@ -140,6 +140,7 @@ concept has_serialisable_parts = requires(const accumulator_t<M>& ca, accumulato
     { ca.measure() } -> std::convertible_to<M>;
     ca.visit_state(null_visitor{});
     a.visit_state(null_visitor{});
+    ca.check_state();
 };
 
 } // namespace detail
@@ -202,7 +203,8 @@ constexpr bool check_measure() {
     if constexpr (offers_v<M, cap::serialisable>)
         static_assert(detail::has_serialisable_parts<M>,
                       "heldout: the measure declares cap::serialisable: it needs `static constexpr std::string_view "
-                      "key`, and its accumulator `measure()` and visit_state(f) (const and non-const)");
+                      "key`, and its accumulator `measure()`, visit_state(f) (const and non-const) and `void "
+                      "check_state() const` (every invariant of a loaded state: input_error naming the field)");
     return true;
 }
 

@@ -157,6 +157,14 @@ struct track_base {
 
 inline std::string undefined_reason(const undefined_error& e) { return e.problem(); }
 
+/// m.row_losses(...) through a call with dependent arguments: clang looks members up in a
+/// discarded `if constexpr` branch of a generic lambda when the object's type is not
+/// dependent, and refused measures without row_losses.
+template <class M, class T, class P>
+void row_losses_of(const M& m, const T& t, const P& p, std::span<double> out) {
+    m.row_losses(t, p, out);
+}
+
 /// Gamma of Efron & Tibshirani (1997): the mean loss over all pairs (truth y_i, prediction
 /// f_j) of the apparent fit. Squared error in closed form; label truth and predictions from
 /// the k x k table of class pairs (exact, O(n + k^2)); otherwise the O(n^2) sum of row values.
@@ -326,8 +334,7 @@ double no_information_of(const M& m, const column_base& t, const column_base& p,
                     if (pt[a] == 0 || pq[b] == 0)
                         continue;
                     const std::int64_t ya = classes[a], fb = classes[b];
-                    m.row_losses(std::span<const std::int64_t>(&ya, 1), std::span<const std::int64_t>(&fb, 1),
-                                 std::span<double>(&v, 1));
+                    row_losses_of(m, TT(&ya, 1), PP(&fb, 1), std::span<double>(&v, 1));
                     s.add(pt[a] * pq[b] * v);
                 }
             gamma = s.value() / (static_cast<double>(n) * static_cast<double>(n));

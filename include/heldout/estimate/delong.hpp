@@ -94,7 +94,11 @@ struct auc_covariance {
 
     /// Tests H0: L auc = 0 with (L A)'(L S L')^-1 (L A) ~ chi-squared(rank L). L has k columns
     /// and linearly independent rows (input_error otherwise); a singular L S L' is undefined.
-    auc_contrast_test test(const Eigen::MatrixXd& L) const {
+    /// A template over the Eigen expression so that the decompositions below are compiled only
+    /// in translation units that call it, not in every one that includes heldout.
+    template <class Derived>
+    auc_contrast_test test(const Eigen::MatrixBase<Derived>& contrast) const {
+        const Eigen::MatrixXd L = contrast;
         constexpr std::string_view who = "heldout::auc_covariance::test";
         if (L.cols() != auc.size() || L.rows() == 0)
             detail::fail(who, "L",

@@ -98,6 +98,11 @@ struct auprc_eval {
     }
     bool operator==(const auprc_eval&) const = default;
     measure::auprc measure() const;
+    /// After a load: a known pr_start code.
+    void check_loaded() const {
+        if (start > static_cast<std::uint8_t>(pr_start::first_precision))
+            detail::fail_loaded("start", "unknown code " + std::to_string(start));
+    }
     template <class F>
     void visit_state(F&& f) {
         f(start);
