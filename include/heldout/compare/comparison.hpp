@@ -309,9 +309,8 @@ inline paired::method_id resolve(paired::method_id requested, const record_shape
             return *d;
         fail(who, "method",
              "no paired method has a valid default for " + std::string(to_string(r.design)) + " (" +
-                 count_text(r.splits, "split") + ") and measure " + measure +
-                 ": the corrected t assumes random train/test splits drawn without replacement "
-                 "(docs/compare.md); methods that apply, each with its caution: " +
+                 count_text(r.splits, "split") + ") and measure " + measure + ": " + std::string(refusal_reason(r)) +
+                 " (docs/compare.md, the rule table). Methods that apply, each with its caution: " +
                  applicable_text(r, f));
     }
     const auto unmet = unmet_needs(paired::info(requested).needs, r, f);

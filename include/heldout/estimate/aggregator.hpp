@@ -541,11 +541,9 @@ inline ci::method_id resolve_interval(ci::method_id requested, const record_shap
             return *d;
         fail(who, "method",
              "no interval method has a valid default for " + std::string(to_string(r.design)) + " (" +
-                 count_text(r.splits, "split") + ") and measure " + measure +
-                 ": splits of this design are not exchangeable random train/test splits, so the corrected t does "
-                 "not apply (docs/intervals.md); methods that apply, each with its caution: " +
-                 applicable_text(r, f) +
-                 "; or estimate on a random plan (repeated k-fold) or with heldout::nested_cv_interval");
+                 count_text(r.splits, "split") + ") and measure " + measure + ": " + std::string(refusal_reason(r)) +
+                 " (docs/intervals.md, the rule table). Methods that apply, each with its caution: " +
+                 applicable_text(r, f));
     }
     const auto unmet = unmet_needs(ci::info(requested).needs, r, f);
     if (unmet.empty())
