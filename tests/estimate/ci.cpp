@@ -39,7 +39,8 @@ TEST_SUITE("estimate/ci") {
                                   ci::agresti_coull, ci::bootstrap_percentile,
                                   ci::bca,           ci::delong,
                                   ci::corrected_t,   ci::naive_t,
-                                  ci::bootstrap_632, ci::bootstrap_632_plus};
+                                  ci::bootstrap_632, ci::bootstrap_632_plus,
+                                  ci::newcombe};
         for (std::size_t i = 0; i < std::size(all); ++i)
             for (std::size_t j = i + 1; j < std::size(all); ++j)
                 CHECK(ci::id_text(all[i].id) != ci::id_text(all[j].id));
@@ -70,7 +71,9 @@ TEST_SUITE("estimate/ci") {
         CHECK(cls.estimate(heldout::measure::classification_error{}).method == ci::method_id::wilson);
         aggregator rank(heldout::measure::auc{});
         rank.record(split{{}, all, 0, 0, 0, {}}, yl, s);
-        CHECK(rank.estimate(heldout::measure::auc{}).method == ci::method_id::delong);
+        // 4 positives and 4 negatives: Newcombe's interval (delong_small_class, measured in the coverage study)
+        CHECK(rank.estimate(heldout::measure::auc{}).method == ci::method_id::newcombe);
+        CHECK(rank.estimate(heldout::measure::auc{}, ci::delong).method == ci::method_id::delong);
         // several splits without replacement
         const std::vector<std::size_t> a{0, 1, 2, 3}, b{4, 5, 6, 7};
         aggregator cv(heldout::measure::mse{});

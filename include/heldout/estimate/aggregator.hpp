@@ -609,7 +609,18 @@ heldout::estimate aggregator::estimate(const M& m, ci::method method, double lev
     }
 
     const record_shape rs = method_shape();
-    const ci::method_id id = detail::resolve_interval(method.id, rs, detail::facts_of(tr), tr.name, who);
+    measure_facts facts = detail::facts_of(tr);
+    // One test set of a U statistic: the class counts pick DeLong or Newcombe (methods.hpp).
+    if (method.id == ci::method_id::automatic && rs.splits == 1 && !rs.bootstrap && facts.case_components && truth_ &&
+        pred_) {
+        try {
+            const auto c = tr.components(*truth_, *pred_, 0, splits_[0].test_size);
+            facts.smaller_class = std::min(c.cases.size(), c.controls.size());
+        } catch (const undefined_error&) {
+            // one class absent: no interval method of this kind applies; the method reports it
+        }
+    }
+    const ci::method_id id = detail::resolve_interval(method.id, rs, facts, tr.name, who);
     e.method = id;
     e.method_label = std::string(ci::info(id).label);
     detail::run_interval(id, in, e);
