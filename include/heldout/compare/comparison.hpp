@@ -91,7 +91,8 @@ struct comparison {
     std::string method_label;                                ///< its printed name
     std::size_t splits = 0;                                  ///< splits behind the comparison
     std::size_t observations = 0;                            ///< test rows behind it (repeats counted each time)
-    std::vector<std::string> notes;                          ///< what the reader must know
+    std::vector<std::string> notes;                          ///< how it was made
+    std::vector<std::string> cautions;                       ///< why the test may not keep its level
 
     bool has_interval() const noexcept { return lower.has_value() && upper.has_value(); }
 };
@@ -113,6 +114,8 @@ inline std::ostream& operator<<(std::ostream& os, const comparison& c) {
         s += " (Holm " + readable_number(*c.adjusted_p_value) + ")";
     s += "; " + std::to_string(c.splits) + (c.splits == 1 ? " split" : " splits") +
          ", n=" + std::to_string(c.observations);
+    for (const auto& k : c.cautions)
+        s += "; caution: " + k;
     return os << s;
 }
 
@@ -141,6 +144,10 @@ inline void write_comparison_json(json_writer& w, const comparison& c) {
     for (const auto& n : c.notes)
         w.value(n);
     w.end_array();
+    w.key("cautions").begin_array();
+    for (const auto& k : c.cautions)
+        w.value(k);
+    w.end_array();
     w.end_object();
 }
 
@@ -166,22 +173,24 @@ inline void write_json(std::ostream& os, std::span<const comparison> cs) {
 /// The CSV header written by write_csv for comparisons.
 inline constexpr std::string_view comparison_csv_header =
     "measure,model_a,model_b,method,level,difference,se,lower,upper,statistic,df,df2,p_value,adjusted_p_value,"
-    "splits,observations,notes";
+    "splits,observations,notes,cautions";
 
 /// CSV with a header line and one row per comparison (RFC 4180 quoting, round-trip numbers).
 inline void write_csv(std::ostream& os, std::span<const comparison> cs) {
     os << comparison_csv_header << '\n';
     for (const auto& c : cs) {
-        std::string notes;
+        std::string notes, cautions;
         for (const auto& n : c.notes)
             notes += (notes.empty() ? "" : "; ") + n;
+        for (const auto& k : c.cautions)
+            cautions += (cautions.empty() ? "" : "; ") + k;
         os << detail::csv_field(c.measure) << ',' << detail::csv_field(c.model_a) << ',' << detail::csv_field(c.model_b)
            << ',' << paired::id_text(c.method) << ',' << detail::number_text(c.level) << ','
            << detail::number_text(c.difference) << ',' << detail::csv_number(c.se) << ',' << detail::csv_number(c.lower)
            << ',' << detail::csv_number(c.upper) << ',' << detail::number_text(c.statistic) << ','
            << detail::csv_number(c.df) << ',' << detail::csv_number(c.df2) << ',' << detail::number_text(c.p_value)
            << ',' << detail::csv_number(c.adjusted_p_value) << ',' << c.splits << ',' << c.observations << ','
-           << detail::csv_field(notes) << '\n';
+           << detail::csv_field(notes) << ',' << detail::csv_field(cautions) << '\n';
     }
 }
 
@@ -311,9 +320,8 @@ inline paired::method_id resolve(paired::method_id requested, const record_shape
             return *d;
         fail(who, "method",
              "no paired method has a valid default for " + std::string(to_string(r.design)) + " (" +
-                 count_text(r.splits, "split") + ") and measure " + measure +
-                 ": the corrected t assumes random train/test splits drawn without replacement "
-                 "(docs/compare.md); methods that apply, each with its caution: " +
+                 count_text(r.splits, "split") + ") and measure " + measure + ": " + std::string(refusal_reason(r)) +
+                 " (docs/compare.md, the rule table). Methods that apply, each with its caution: " +
                  applicable_text(r, f));
     }
     const auto unmet = unmet_needs(paired::info(requested).needs, r, f);
@@ -393,6 +401,8 @@ inline void split_methods(comparison& c, paired::method_id id, std::span<const s
         r = naive_resampled_t(d, level);
         c.notes.push_back("the naive paired t treats overlapping splits as independent and is known to reject "
                           "far too often (Dietterich 1998; Nadeau & Bengio 2003): use paired::corrected_t");
+        c.cautions.push_back("naive paired t over overlapping splits: known to reject a true null far more often "
+                             "than its level (docs/compare.md, coverage study); for contrast only");
     }
     c.se = r.se;
     c.lower = r.lower;
@@ -471,6 +481,8 @@ comparison compare(const aggregator& agg_a, const aggregator& agg_b, const M& m,
         c.statistic = r.z;
         c.p_value = r.p_value;
         c.notes.push_back("z statistic, normal reference; Wald interval of the difference");
+        if (auto k = detail::small_class_caution(ca.cases.size(), ca.controls.size(), "the paired DeLong test"))
+            c.cautions.push_back(*k);
         return c;
     }
     case paired::method_id::bootstrap_percentile:

@@ -541,11 +541,9 @@ inline ci::method_id resolve_interval(ci::method_id requested, const record_shap
             return *d;
         fail(who, "method",
              "no interval method has a valid default for " + std::string(to_string(r.design)) + " (" +
-                 count_text(r.splits, "split") + ") and measure " + measure +
-                 ": splits of this design are not exchangeable random train/test splits, so the corrected t does "
-                 "not apply (docs/intervals.md); methods that apply, each with its caution: " +
-                 applicable_text(r, f) +
-                 "; or estimate on a random plan (repeated k-fold) or with heldout::nested_cv_interval");
+                 count_text(r.splits, "split") + ") and measure " + measure + ": " + std::string(refusal_reason(r)) +
+                 " (docs/intervals.md, the rule table). Methods that apply, each with its caution: " +
+                 applicable_text(r, f));
     }
     const auto unmet = unmet_needs(ci::info(requested).needs, r, f);
     if (unmet.empty())
@@ -611,7 +609,18 @@ heldout::estimate aggregator::estimate(const M& m, ci::method method, double lev
     }
 
     const record_shape rs = method_shape();
-    const ci::method_id id = detail::resolve_interval(method.id, rs, detail::facts_of(tr), tr.name, who);
+    measure_facts facts = detail::facts_of(tr);
+    // One test set of a U statistic: the class counts pick DeLong or Newcombe (methods.hpp).
+    if (method.id == ci::method_id::automatic && rs.splits == 1 && !rs.bootstrap && facts.case_components && truth_ &&
+        pred_) {
+        try {
+            const auto c = tr.components(*truth_, *pred_, 0, splits_[0].test_size);
+            facts.smaller_class = std::min(c.cases.size(), c.controls.size());
+        } catch (const undefined_error&) {
+            // one class absent: no interval method of this kind applies; the method reports it
+        }
+    }
+    const ci::method_id id = detail::resolve_interval(method.id, rs, facts, tr.name, who);
     e.method = id;
     e.method_label = std::string(ci::info(id).label);
     detail::run_interval(id, in, e);
