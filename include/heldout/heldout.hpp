@@ -5,6 +5,7 @@
 //   for (const heldout::split& s : heldout::kfold{.folds = 10, .seed = 7}.splits(n)) { ... }
 #pragma once
 
+#include <heldout/calibration.hpp>
 #include <heldout/censored.hpp>
 #include <heldout/compare.hpp>
 #include <heldout/core.hpp>

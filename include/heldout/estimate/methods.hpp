@@ -42,7 +42,8 @@ enum class need : std::uint32_t {
     apparent = 1u << 10,        ///< the apparent (resubstitution) result was recorded
     five_by_two = 1u << 11,     ///< exactly the 10 splits of heldout::five_by_two, in order
     resamplable = 1u << 12,     ///< per-row values, or a weighted add with kept predictions (the bootstrap)
-    query_values = 1u << 13     ///< per-query values of two rankers on the same queries (heldout::compare_queries)
+    query_values = 1u << 13,    ///< per-query values of two rankers on the same queries (heldout::compare_queries)
+    fitted_se = 1u << 14        ///< a fitted value with its inverse-information standard error (cap::fitted_se)
 };
 constexpr need operator|(need a, need b) noexcept {
     return static_cast<need>(static_cast<std::uint32_t>(a) | static_cast<std::uint32_t>(b));
@@ -80,6 +81,7 @@ struct measure_facts {
     bool case_components = false;
     bool weighted_add = false;
     bool lower_is_better = false;
+    bool fitted_se = false;
 };
 
 namespace ci {
@@ -97,11 +99,12 @@ enum class method_id : unsigned char {
     corrected_t,
     naive_t,
     bootstrap_632,
-    bootstrap_632_plus
+    bootstrap_632_plus,
+    wald
 };
 
 /// The interval methods, indexed by method_id (automatic first).
-inline constexpr std::array<method_info, 12> methods{{
+inline constexpr std::array<method_info, 13> methods{{
     {"automatic", "automatic", "", "the valid default for what was recorded (see the rules in docs/intervals.md)",
      need::none, true},
     {"t", "Student t", "Student (1908), Biometrika 6:1-25",
@@ -136,6 +139,10 @@ inline constexpr std::array<method_info, 12> methods{{
     {"bootstrap_632_plus", ".632+ bootstrap", "Efron & Tibshirani (1997), JASA 92:548-560, eq. (32)",
      ".632 corrected for overfitting with the no-information error (point estimate)",
      need::bootstrap_splits | need::row_losses | need::lower_is_better | need::apparent, false},
+    {"wald", "Wald (inverse information)", "Wald (1943), Trans. AMS 54:426-482; Cox (1958), Biometrika 45:562-565",
+     "value +- z se, se from the inverse Fisher information of the model fitted to one test set "
+     "(calibration slope and intercept)",
+     need::one_test_set | need::fitted_se | need::kept_predictions, true},
 }};
 
 /// The table row of an interval method.
@@ -254,6 +261,9 @@ inline std::string_view need_text(need n) {
                "predictions of both models";
     case need::query_values:
         return "it compares the per-query values of two rankers (heldout::compare_queries), not recorded splits";
+    case need::fitted_se:
+        return "the measure is not a fitted model parameter with an inverse-information standard error (it does "
+               "not offer cap::fitted_se)";
     case need::none:
         break;
     }
@@ -283,6 +293,7 @@ inline std::vector<need> unmet_needs(need needs, const record_shape& r, const me
     check(need::five_by_two, r.five_by_two);
     check(need::resamplable, f.row_losses || (f.weighted_add && r.kept_predictions));
     check(need::query_values, r.query_values);
+    check(need::fitted_se, f.fitted_se);
     return out;
 }
 
@@ -302,6 +313,7 @@ inline std::vector<method_id> applicable(const record_shape& r, const measure_fa
 ///   bootstrap samples                     -> bootstrap_632_plus (errors with per-row values)
 ///   one test set, 0/1 per-row values      -> wilson
 ///   one test set, DeLong components       -> delong
+///   one test set, a fitted value with se  -> wald
 ///   one test set, per-row values          -> t
 ///   one test set, otherwise               -> bca (weighted add, kept predictions)
 ///   several random splits w/o replacement -> corrected_t
@@ -312,7 +324,7 @@ inline std::optional<method_id> automatic_choice(const record_shape& r, const me
     if (r.bootstrap)
         return ok(method_id::bootstrap_632_plus) ? std::optional(method_id::bootstrap_632_plus) : std::nullopt;
     if (r.splits == 1) {
-        for (const method_id id : {method_id::wilson, method_id::delong, method_id::t, method_id::bca})
+        for (const method_id id : {method_id::wilson, method_id::delong, method_id::wald, method_id::t, method_id::bca})
             if (ok(id))
                 return id;
         return std::nullopt;
