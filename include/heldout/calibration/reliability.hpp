@@ -104,7 +104,7 @@ std::vector<calibration_bin> reliability(const T& truth, const P& probability, s
     std::vector<detail::compensated_sum> sum(bins);
     for (std::size_t i = 0; i < n; ++i) {
         ++count[bin_of[i]];
-        ones[bin_of[i]] += t[i] == 1 ? 1 : 0;
+        ones[bin_of[i]] += t[i] == 1 ? std::size_t{1} : std::size_t{0};
         sum[bin_of[i]].add(static_cast<double>(p[i]));
     }
     std::vector<calibration_bin> out;
