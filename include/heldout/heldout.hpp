@@ -15,4 +15,5 @@
 #include <heldout/plan.hpp>
 #include <heldout/query.hpp>
 #include <heldout/report.hpp>
+#include <heldout/slices.hpp>
 #include <heldout/stream.hpp>
