@@ -5,6 +5,7 @@
 //   for (const heldout::split& s : heldout::kfold{.folds = 10, .seed = 7}.splits(n)) { ... }
 #pragma once
 
+#include <heldout/calibration.hpp>
 #include <heldout/censored.hpp>
 #include <heldout/compare.hpp>
 #include <heldout/core.hpp>
@@ -14,4 +15,5 @@
 #include <heldout/plan.hpp>
 #include <heldout/query.hpp>
 #include <heldout/report.hpp>
+#include <heldout/slices.hpp>
 #include <heldout/stream.hpp>

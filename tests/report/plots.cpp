@@ -155,9 +155,14 @@ TEST_SUITE("report/plots") {
                                                      {"B", reliability_bins(y, p, 10)}};
         const std::string s = calibration_plot(models);
         REQUIRE(xml_problem(s).empty());
-        // polylines: diagonal, 4 + 7 share bars, two model lines
+        // polylines: diagonal, 4 + 7 share bars, 4 + 7 Wilson whiskers, two model lines
         const auto b10 = reliability_bins(y, p, 10).size();
-        CHECK(count_of(s, "<polyline") == 1 + 4 + b10 + 2);
+        CHECK(count_of(s, "<polyline") == 1 + 2 * (4 + b10) + 2);
+        // the bins and whiskers are heldout::reliability's
+        const auto r = heldout::reliability(y, p, 10);
+        REQUIRE(r.size() == b10);
+        CHECK(reliability_bins(y, p, 10)[2].observed_lower == r[2].lower);
+        CHECK(reliability_bins(y, p, 10)[2].observed_upper == r[2].upper);
         CHECK(count_of(s, "<circle") == 4 + b10 + 2); // markers + legend markers
         CHECK(s.find(">observed frequency of the event<") != std::string::npos);
         CHECK_THROWS_AS(calibration_plot(std::vector<calibration_series>{{"empty", {}}}), heldout::input_error);

@@ -15,7 +15,11 @@
 //   heldout::write_csv(std::cout, all);   // Holm-adjusted p-values in adjusted_p_value
 //
 // `difference` is always measure(A) - measure(B): with an error (lower is better) a positive
-// difference favours B. Methods, by their published names (heldout::paired):
+// difference favours B. A measure with an ideal value (direction::toward_ideal: the
+// calibration slope, ideal 1) is compared by its distance from the ideal instead:
+// difference = |A - ideal| - |B - ideal| (measure::distance_from_ideal, computed from the
+// kept predictions), so a positive difference again favours B; the notes give both values. Methods, by their published
+// names (heldout::paired):
 //   corrected_t          several splits without replacement: corrected resampled t on the
 //                        per-split differences, variance factor 1/J + n_test/n_train (Nadeau &
 //                        Bengio 2003 for subsampling; Bouckaert & Frank 2004 for r x k-fold, where
@@ -56,6 +60,7 @@
 #include <heldout/estimate/corrected_t.hpp>
 #include <heldout/estimate/delong.hpp>
 #include <heldout/estimate/estimate.hpp>
+#include <heldout/measure/distance_from_ideal.hpp>
 #include <heldout/measure/mean_loss.hpp>
 
 #include <algorithm>
@@ -412,6 +417,10 @@ inline void split_methods(comparison& c, paired::method_id id, std::span<const s
     c.p_value = r.p_value;
 }
 
+template <class M>
+comparison compare_by_distance(const aggregator& agg_a, const aggregator& agg_b, const M& m, paired::method method,
+                               double level);
+
 } // namespace detail::cmp
 
 /// Compares models A and B evaluated on the same splits (see the header comment).
@@ -421,6 +430,8 @@ comparison compare(const aggregator& agg_a, const aggregator& agg_b, const M& m,
     using namespace detail::cmp;
     using detail::aggregator_access;
     static_assert(check_measure<M>());
+    if constexpr (has_ideal_v<M>)
+        return compare_by_distance(agg_a, agg_b, m, method, level);
     detail::check_level(who, level);
     check_same_splits(agg_a, agg_b);
     const auto& ta = aggregator_access::track(agg_a, m, who);
@@ -539,6 +550,33 @@ comparison compare(const M& m, const T& truth, const P& prediction_a, const P& p
 }
 
 namespace detail::cmp {
+
+/// A measure with an ideal value: the comparison of |A - ideal| and |B - ideal|, tracked on
+/// copies of the aggregators from their kept predictions.
+template <class M>
+comparison compare_by_distance(const aggregator& agg_a, const aggregator& agg_b, const M& m, paired::method method,
+                               double level) {
+    const measure::distance_from_ideal<M> d{m};
+    for (const aggregator* g : {&agg_a, &agg_b})
+        if (!g->keeps_predictions())
+            fail(who, g == &agg_a ? "agg_a" : "agg_b",
+                 "measure " + m.name() + " has an ideal value (" + number_text(ideal_value_v<M>) +
+                     ") and is compared by the distance from it, computed from the kept predictions; this "
+                     "aggregator did not keep them");
+    aggregator a = agg_a, b = agg_b;
+    if (!a.tracks(d))
+        a.add_measure(d);
+    if (!b.tracks(d))
+        b.add_measure(d);
+    comparison c = compare(a, b, d, method, level);
+    std::string values;
+    const auto va = agg_a.split_values(m), vb = agg_b.split_values(m);
+    if (va.size() == 1 && va[0].value && vb[0].value)
+        values = ": A " + number_text(*va[0].value) + ", B " + number_text(*vb[0].value);
+    c.notes.insert(c.notes.begin(), "measure " + m.name() + " has the ideal value " + number_text(ideal_value_v<M>) +
+                                        "; difference = |A - ideal| - |B - ideal|, positive favours B" + values);
+    return c;
+}
 
 inline std::vector<std::string> model_names(std::size_t k, std::vector<std::string> names) {
     if (names.empty())

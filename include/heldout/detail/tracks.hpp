@@ -118,6 +118,7 @@ struct track_base {
     bool case_components = false;
     bool weighted_add = false;
     bool lower_is_better = false;
+    bool fitted_se = false;
     std::vector<std::optional<double>> values; // per split
     std::vector<std::string> reasons;          // per split, why undefined
     std::vector<double> losses;                // row_losses: per recorded test row, in record order
@@ -153,6 +154,9 @@ struct track_base {
                                                 std::size_t count) const = 0;
     /// The no-information error of Efron & Tibshirani (1997) on the apparent fit.
     virtual double no_information(const column_base& t, const column_base& p) const = 0;
+    /// The fitted value and its inverse-information se on rows [first, first + count) (cap::fitted_se).
+    virtual heldout::fitted_value fitted(const column_base& t, const column_base& p, std::size_t first,
+                                         std::size_t count) const = 0;
 };
 
 inline std::string undefined_reason(const undefined_error& e) { return e.problem(); }
@@ -188,6 +192,7 @@ struct measure_track final : track_base {
         row_losses = offers_v<M, cap::row_losses>;
         case_components = offers_v<M, cap::case_components>;
         lower_is_better = M::better == direction::lower_is_better;
+        fitted_se = offers_v<M, cap::fitted_se>;
     }
     std::unique_ptr<track_base> clone() const override { return std::make_unique<measure_track>(*this); }
 
@@ -293,6 +298,18 @@ struct measure_track final : track_base {
             HELDOUT_ASSERT(false);
         }
         return c;
+    }
+
+    heldout::fitted_value fitted(const column_base& t, const column_base& p, std::size_t first,
+                                 std::size_t count) const override {
+        heldout::fitted_value f;
+        if constexpr (offers_v<M, cap::fitted_se>) {
+            with_pairing(measure, t, p, first, count, "heldout::aggregator::estimate",
+                         [&](const auto& tt, const auto& pp) { f = measure.fitted(tt, pp); });
+        } else {
+            HELDOUT_ASSERT(false);
+        }
+        return f;
     }
 
     double no_information(const column_base& t, const column_base& p) const override {

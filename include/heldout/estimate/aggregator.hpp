@@ -520,6 +520,7 @@ inline measure_facts facts_of(const track_base& t) {
     f.case_components = t.case_components;
     f.weighted_add = t.weighted_add;
     f.lower_is_better = t.lower_is_better;
+    f.fitted_se = t.fitted_se;
     return f;
 }
 

@@ -179,6 +179,18 @@ void estimate_newcombe(const In& in, estimate& e) {
 }
 
 template <class In>
+void estimate_wald(const In& in, estimate& e) {
+    const std::size_t n = in.splits[0].test_size;
+    const auto f = in.track.fitted(*in.truth, *in.predictions, 0, n);
+    const double z = two_sided_z(in.level);
+    e.se = f.se;
+    e.lower = f.value - z * f.se;
+    e.upper = f.value + z * f.se;
+    e.notes.push_back("Wald interval value +- z se, se from the inverse Fisher information of the fit on the " +
+                      count_text(n, "test row") + " (" + count_text(f.iterations, "Newton step") + ")");
+}
+
+template <class In>
 void estimate_resampled_t(const In& in, estimate& e, ci::method_id id) {
     if (in.values.size() < 2)
         fail_undefined(in.who, "only one split has a defined value; " + method_name(id) + " needs two or more");
@@ -260,6 +272,8 @@ void run_interval(ci::method_id id, const In& in, estimate& e) {
     case ci::method_id::bootstrap_632:
     case ci::method_id::bootstrap_632_plus:
         return estimate_632(in, e, id);
+    case ci::method_id::wald:
+        return estimate_wald(in, e);
     case ci::method_id::automatic:
         break;
     }

@@ -17,11 +17,13 @@
 //
 // The numbers come from elsewhere (roc_points, the aggregator, the Friedman ranks and the
 // Nemenyi CD); these functions only draw them, except reliability_bins, which bins
-// probabilities with the equal-width bins of Naeini, Cooper & Hauskrecht (2015):
-// B_1 = [0, 1/M], B_m = ((m-1)/M, m/M], edges computed by division so that 0.07 lands in
-// bin 7 of 100 (ceil(0.07 * 100) would say 8).
+// probabilities with heldout::reliability (calibration/reliability.hpp): the equal-width bins
+// of Naeini, Cooper & Hauskrecht (2015), B_1 = [0, 1/M], B_m = ((m-1)/M, m/M], edges computed
+// by division so that 0.07 lands in bin 7 of 100 (ceil(0.07 * 100) would say 8), each with
+// the 95% Wilson interval of its observed rate, drawn as a whisker.
 #pragma once
 
+#include <heldout/calibration/reliability.hpp>
 #include <heldout/core/random.hpp>
 #include <heldout/detail/validate.hpp>
 #include <heldout/report/svg.hpp>
@@ -124,6 +126,8 @@ struct reliability_bin {
     std::size_t count = 0;       ///< predictions in the bin
     double mean_probability = 0; ///< their mean predicted probability
     double observed_rate = 0;    ///< the share of them whose truth is 1
+    double observed_lower = 0;   ///< 95% Wilson interval of observed_rate (heldout::reliability)
+    double observed_upper = 1;   ///<
 };
 
 /// The non-empty equal-width bins of predicted probabilities (binary, positive class).
@@ -141,31 +145,10 @@ std::vector<reliability_bin> reliability_bins(const T& truth, const P& probabili
         if (!(t[i] == 0 || t[i] == 1))
             detail::fail_at(who, "truth", "label outside the classes 0..1", i);
     detail::check_probabilities(who, "probability", p);
-    const double m = static_cast<double>(bins);
-    std::vector<std::size_t> count(bins, 0), positives(bins, 0);
-    std::vector<double> sum(bins, 0.0);
-    for (std::size_t i = 0; i < t.size(); ++i) {
-        const double x = static_cast<double>(p[i]);
-        // First guess from the product, then moved until edge(b) < x <= edge(b+1) holds with
-        // edges computed by division (the product alone misplaces values on edges).
-        std::size_t b = x <= 0 ? 0 : static_cast<std::size_t>(std::max(0.0, std::ceil(x * m) - 1));
-        b = std::min(b, bins - 1);
-        while (b > 0 && x <= static_cast<double>(b) / m)
-            --b;
-        while (b + 1 < bins && x > static_cast<double>(b + 1) / m)
-            ++b;
-        ++count[b];
-        positives[b] += t[i] == 1;
-        sum[b] += x;
-    }
+    // The bins of heldout::reliability (calibration/reliability.hpp), with their Wilson intervals.
     std::vector<reliability_bin> out;
-    for (std::size_t b = 0; b < bins; ++b) {
-        if (count[b] == 0)
-            continue;
-        const double n = static_cast<double>(count[b]);
-        out.push_back({b, static_cast<double>(b) / m, static_cast<double>(b + 1) / m, count[b], sum[b] / n,
-                       static_cast<double>(positives[b]) / n});
-    }
+    for (const calibration_bin& b : heldout::reliability(truth, probability, bins))
+        out.push_back({b.index, b.left, b.right, b.count, b.mean_predicted, b.observed, b.lower, b.upper});
     return out;
 }
 
@@ -222,6 +205,8 @@ inline std::string calibration_plot(std::span<const calibration_series> models,
         for (const auto& b : models[m].bins) {
             x.push_back(b.mean_probability);
             y.push_back(b.observed_rate);
+            // the bin's 95% Wilson interval as a whisker: few predictions, long whisker
+            fig.reference_line(b.mean_probability, b.observed_lower, b.mean_probability, b.observed_upper, palette(m));
         }
         fig.line_points(models[m].name, x, y, palette(m));
     }
