@@ -35,6 +35,7 @@
 #include <cmath>
 #include <cstddef>
 #include <cstdint>
+#include <limits>
 #include <numeric>
 #include <optional>
 #include <ranges>
@@ -183,6 +184,65 @@ inline std::string pr_plot(std::span<const pr_series> curves, double prevalence 
             last_recall = s.recall[i];
         }
         fig.line(s.name, x, y);
+    }
+    return fig.str();
+}
+
+/// One regression model's predictions beside the truth.
+struct scatter_series {
+    std::string name;
+    std::vector<double> observed;
+    std::vector<double> predicted;
+};
+
+/// Predicted against observed values of regression models, one point colour per model, with
+/// the diagonal of perfect prediction. Above `max_points` rows a model is thinned to every
+/// ceil(n / max_points)-th row (in row order, so the picture is reproducible), and the
+/// subtitle says so.
+inline std::string predicted_observed_plot(std::span<const scatter_series> models,
+                                           std::string title = "Predicted against observed", std::string subtitle = "",
+                                           std::size_t max_points = 2000) {
+    constexpr std::string_view who = "heldout::report::predicted_observed_plot";
+    if (models.empty())
+        detail::fail(who, "models", "empty input");
+    if (max_points < 1)
+        detail::fail(who, "max_points", "must be at least 1");
+    double lo = std::numeric_limits<double>::infinity(), hi = -lo;
+    std::size_t step = 1;
+    for (std::size_t m = 0; m < models.size(); ++m) {
+        const auto& s = models[m];
+        const std::string arg = "models[" + std::to_string(m) + "]";
+        if (s.observed.size() != s.predicted.size())
+            detail::fail(who, arg, "observed and predicted differ in size");
+        if (s.observed.empty())
+            detail::fail(who, arg, "no points");
+        detail::check_finite(who, arg + ".observed", std::span<const double>(s.observed));
+        detail::check_finite(who, arg + ".predicted", std::span<const double>(s.predicted));
+        for (std::size_t i = 0; i < s.observed.size(); ++i) {
+            lo = std::min({lo, s.observed[i], s.predicted[i]});
+            hi = std::max({hi, s.observed[i], s.predicted[i]});
+        }
+        step = std::max(step, (s.observed.size() + max_points - 1) / max_points);
+    }
+    if (step > 1)
+        subtitle += (subtitle.empty() ? "" : "; ") + std::string("every ") + std::to_string(step) + "th row shown";
+    figure fig({.title = std::move(title),
+                .x = {.label = "observed"},
+                .y = {.label = "predicted"},
+                .width = 600,
+                .height = 560,
+                .legend = legend_place::top_left,
+                .subtitle = std::move(subtitle)});
+    fig.reference_line(lo, lo, hi, hi);
+    for (std::size_t m = 0; m < models.size(); ++m) {
+        std::vector<double> x, y;
+        for (std::size_t i = 0; i < models[m].observed.size(); i += step) {
+            x.push_back(models[m].observed[i]);
+            y.push_back(models[m].predicted[i]);
+        }
+        fig.points(models[m].name, x, y, palette(m), 2.4);
+        if (x.size() > 200)
+            fig.opacity(0.5);
     }
     return fig.str();
 }
