@@ -10,8 +10,8 @@
 //   auto m = heldout::compare(error, truth, labels_a, labels_b, heldout::paired::mcnemar_exact);
 //   auto d = heldout::compare(heldout::measure::auc{}, truth, scores_a, scores_b);   // DeLong
 //   auto b = heldout::compare(m, truth, f_a, f_b, heldout::paired::bootstrap_bca(5000, 7));
-//   auto all = heldout::compare_all_pairs(models, mse, heldout::paired::automatic, 0.95,
-//                                         {"ridge", "tree", "knn"});
+//   auto all = heldout::compare_all_pairs(models, mse);   // names from aggregator::set_model
+//   // (or pass them: compare_all_pairs(models, mse, paired::automatic, 0.95, {"ridge", "tree", "knn"}))
 //   heldout::write_csv(std::cout, all);   // Holm-adjusted p-values in adjusted_p_value
 //
 // `difference` is always measure(A) - measure(B): with an error (lower is better) a positive
@@ -288,7 +288,7 @@ inline void bootstrap_fill(comparison& c, paired::method_id id, double theta, bo
     std::string note = std::to_string(set.values.size()) + " paired replicates, seed " + std::to_string(seed) +
                        "; statistic = difference / se; p-value from the replicates (Davison & Hinkley 1997)";
     if (id == paired::method_id::bootstrap_bca)
-        note += "; z0 " + number_text(r.z0) + ", acceleration " + number_text(r.acceleration);
+        note += "; z0 " + note_number(r.z0) + ", acceleration " + note_number(r.acceleration);
     c.notes.push_back(note);
     if (set.undefined > 0)
         c.notes.push_back(std::to_string(set.undefined) + " of " + std::to_string(replicates) +
@@ -376,7 +376,7 @@ inline void split_methods(comparison& c, paired::method_id id, std::span<const s
             c.df = 5.0;
             c.p_value = r.t_p_value;
             c.notes.push_back("difference is the mean of the 10 fold differences; t uses the first, " +
-                              number_text(r.first_difference) +
+                              note_number(r.first_difference) +
                               ", and the interval (which inverts the t test) is centred on it");
         } else {
             c.statistic = r.f_statistic;
@@ -400,8 +400,8 @@ inline void split_methods(comparison& c, paired::method_id id, std::span<const s
         c.method_label += kfold ? " (Bouckaert-Frank)" : " (Nadeau-Bengio)";
         c.notes.push_back(std::string(kfold ? "repeated k-fold form (Bouckaert & Frank 2004)"
                                             : "subsampling form (Nadeau & Bengio 2003)") +
-                          ": variance factor 1/J + n_test/n_train with n_train " + number_text(n_train) + ", n_test " +
-                          number_text(n_test) + " (mean recorded sizes)");
+                          ": variance factor 1/J + n_test/n_train with n_train " + note_number(n_train) + ", n_test " +
+                          note_number(n_test) + " (mean recorded sizes)");
     } else {
         r = naive_resampled_t(d, level);
         c.notes.push_back("the naive paired t treats overlapping splits as independent and is known to reject "
@@ -441,6 +441,10 @@ comparison compare(const aggregator& agg_a, const aggregator& agg_b, const M& m,
     comparison c;
     c.measure = ta.name;
     c.level = level;
+    if (!agg_a.model().empty()) // named models (aggregator::set_model) name A and B
+        c.model_a = agg_a.model();
+    if (!agg_b.model().empty())
+        c.model_b = agg_b.model();
     record_shape rs = agg_a.method_shape();
     rs.kept_predictions = agg_a.keeps_predictions() && agg_b.keeps_predictions();
     measure_facts f = detail::facts_of(ta);
@@ -578,10 +582,15 @@ comparison compare_by_distance(const aggregator& agg_a, const aggregator& agg_b,
     return c;
 }
 
-inline std::vector<std::string> model_names(std::size_t k, std::vector<std::string> names) {
+/// The names of k models: those given; else the aggregators' own (aggregator::set_model)
+/// when every one is named; else "model 1", "model 2", ...
+inline std::vector<std::string> model_names(std::span<const aggregator> models, std::vector<std::string> names) {
+    const std::size_t k = models.size();
+    const bool all_named =
+        std::all_of(models.begin(), models.end(), [](const aggregator& a) { return !a.model().empty(); });
     if (names.empty())
         for (std::size_t j = 0; j < k; ++j)
-            names.push_back("model " + std::to_string(j + 1));
+            names.push_back(all_named ? models[j].model() : "model " + std::to_string(j + 1));
     if (names.size() != k)
         fail(who, "names", std::to_string(names.size()) + " names for " + std::to_string(k) + " models");
     return names;
@@ -607,7 +616,7 @@ std::vector<comparison> compare_all_pairs(std::span<const aggregator> models, co
                                           std::vector<std::string> names = {}) {
     if (models.size() < 2)
         detail::fail(detail::cmp::who, "models", "need at least 2 models, got " + std::to_string(models.size()));
-    names = detail::cmp::model_names(models.size(), std::move(names));
+    names = detail::cmp::model_names(models, std::move(names));
     std::vector<comparison> out;
     for (std::size_t i = 0; i < models.size(); ++i)
         for (std::size_t j = i + 1; j < models.size(); ++j) {
@@ -630,7 +639,7 @@ std::vector<comparison> compare_to_reference(std::span<const aggregator> models,
         detail::fail(detail::cmp::who, "reference",
                      "index " + std::to_string(reference) + " outside the " + std::to_string(models.size()) +
                          " models");
-    names = detail::cmp::model_names(models.size(), std::move(names));
+    names = detail::cmp::model_names(models, std::move(names));
     std::vector<comparison> out;
     for (std::size_t i = 0; i < models.size(); ++i) {
         if (i == reference)
