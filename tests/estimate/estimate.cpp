@@ -167,7 +167,7 @@ TEST_SUITE("estimate/estimate") {
             "split,,MSE,corrected_t,0.95,,,,,,,,1,0,1,200,100,flat,\n"
             "split,,MSE,corrected_t,0.95,0.35000000000000003,,,,,,,2,0,2,200,100,,\n";
         CHECK(os.str() == expect);
-        // every row has the header's 18 fields (outside quotes)
+        // every row has the header's 19 fields (outside quotes)
         std::size_t fields = 1;
         bool quoted = false;
         for (char c : std::string(heldout::csv_header))
