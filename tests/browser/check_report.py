@@ -17,7 +17,7 @@ section and figure html_report draws, and prints "figures N svgs M". This script
    out of their SVG, and labels that overlap; chromium's --dump-dom returns that DOM;
 3. fails on any error, console message, missing or empty figure, zero-size SVG, label outside
    its SVG, overlapping labels, or a page wider than the window (a table or figure that
-   overflows);
+   overflows), in a 1200px and in a 700px wide window;
 4. keeps a screenshot, WORK_DIR/report.png, for a person to look at.
 
 Exits 77 (ctest SKIP_RETURN_CODE) with a clear line when chromium is not installed, except
@@ -31,7 +31,8 @@ import subprocess
 import sys
 
 SKIP = 77
-WIDTH, HEIGHT = 1200, 900
+# A desktop window, and a narrow one (half a laptop screen, a tablet): nothing may spill at either.
+WIDTHS, HEIGHT = (1200, 700), 900
 
 PROBE = r"""<script id="heldout-probe-script">
 (function () {
@@ -110,16 +111,16 @@ def find_chromium():
     return None
 
 
-def run_chromium(chromium, work, page, extra):
+def run_chromium(chromium, work, page, extra, width=WIDTHS[0]):
     args = [chromium, "--headless", "--no-sandbox", "--disable-gpu", "--no-first-run", "--disable-extensions",
             "--allow-file-access-from-files", "--user-data-dir=" + os.path.join(work, "profile"),
-            "--window-size=%d,%d" % (WIDTH, HEIGHT), "--virtual-time-budget=10000",
+            "--window-size=%d,%d" % (width, HEIGHT), "--virtual-time-budget=10000",
             "--enable-logging=stderr", "--v=0"] + extra + ["file://" + os.path.abspath(page)]
     r = subprocess.run(args, capture_output=True, text=True, timeout=180)
     return r
 
 
-def probe(chromium, work, html, name):
+def probe(chromium, work, html, name, width=WIDTHS[0]):
     """Loads html (with the probe put first in <head>) and returns (probe JSON, console lines)."""
     head = html.find("<head>")
     if head < 0:
@@ -127,7 +128,7 @@ def probe(chromium, work, html, name):
     page = os.path.join(work, name)
     with open(page, "w", encoding="utf-8") as f:
         f.write(html[: head + 6] + PROBE + html[head + 6:])
-    r = run_chromium(chromium, work, page, ["--dump-dom"])
+    r = run_chromium(chromium, work, page, ["--dump-dom"], width)
     m = re.search(r'<pre id="heldout-probe">(.*?)</pre>', r.stdout, re.S)
     if r.returncode != 0 or not m:
         print(r.stderr[-4000:])
@@ -206,13 +207,16 @@ def main():
     figures, svgs = int(m.group(1)), int(m.group(2))
     with open(page, encoding="utf-8") as f:
         html = f.read()
-    result, console = probe(chromium, work, html, "report-probed.html")
+    found = []
+    for width in WIDTHS:
+        result, console = probe(chromium, work, html, "report-probed.html", width)
+        print("report.browser: in a %dpx window" % width)
+        for f in result["figures"]:
+            print("  figure %d: %d svg (%s), %d shapes, %d labels: %s" %
+                  (f["index"] + 1, len(f["svgs"]), ", ".join("%gx%g" % (b["w"], b["h"]) for b in f["svgs"]),
+                   f["shapes"], f["labels"], f["caption"][:50]))
+        found += ["%dpx window: %s" % (width, line) for line in problems_of(result, console, figures, svgs)]
     shot = run_chromium(chromium, work, page, ["--screenshot=" + os.path.join(work, "report.png")])
-    found = problems_of(result, console, figures, svgs)
-    for f in result["figures"]:
-        print("  figure %d: %d svg (%s), %d shapes, %d labels: %s" %
-              (f["index"] + 1, len(f["svgs"]), ", ".join("%gx%g" % (b["w"], b["h"]) for b in f["svgs"]),
-               f["shapes"], f["labels"], f["caption"][:50]))
     if shot.returncode != 0:
         found.append("the screenshot failed: " + shot.stderr[-500:])
     if found:
