@@ -7,6 +7,9 @@
 //   auto all = heldout::mpi::merge(acc, MPI_COMM_WORLD);          // same on every rank
 //   double auc = heldout::mpi::evaluate(heldout::measure::auc{}, my_truth_shard, my_score_shard,
 //                                       MPI_COMM_WORLD);
+//   double n10 = heldout::mpi::evaluate(heldout::measure::ndcg{.k = 10},       // <heldout/query.hpp>
+//                                       heldout::by_query(my_query_ids, my_relevance), my_scores,
+//                                       MPI_COMM_WORLD);               // each query on one rank
 //   heldout::aggregator agg = heldout::mpi::evaluate_splits(
 //       MPI_COMM_WORLD, heldout::repeated_kfold{.folds = 10, .repeats = 10, .seed = 1}.splits(n), y,
 //       fit_predict, heldout::measure::mse{});                      // same on every rank

@@ -375,6 +375,13 @@ int main(int argc, char** argv) {
             if (rank == 0)
                 expect(reported == 15, "progress reached 15 of 15 on rank 0");
 
+            // Fewer splits than workers (2 splits, up to 3 workers): a worker without a first
+            // split stops at once, and the result is still the one-process aggregator.
+            const auto two = heldout::kfold{.folds = 2, .seed = 6};
+            expect(describe(heldout::mpi::evaluate_splits(comm, two.splits(n), y, model, hm::mse{}), hm::mse{}) ==
+                       describe(heldout::evaluate_splits(two.splits(n), y, model, hm::mse{}), hm::mse{}),
+                   "evaluate_splits with fewer splits than ranks = one process");
+
             auto prob = [&](std::span<const std::size_t> train, std::span<const std::size_t> test) {
                 auto f = model(train, test);
                 for (double& v : f)
