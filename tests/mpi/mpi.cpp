@@ -413,9 +413,9 @@ int main(int argc, char** argv) {
             }
             expect(thrown, "a failed fit throws remote_error on every rank");
 
-            // A fit that fails on the last rank only (whatever it fits). Splits are handed to
-            // whichever rank is free, so the other ranks' fits are slowed (50 ms each) to make
-            // sure the last rank is handed one even when it starts late on a loaded machine.
+            // A fit that fails on the last rank only (whatever it fits). Each worker starts on a
+            // split of its own without asking (worker w on split w - 1), so the last rank fits
+            // one however late it starts; the others' fits are slowed (50 ms each) as well.
             auto fails_last = [&](std::span<const std::size_t> train, std::span<const std::size_t> test) {
                 if (rank + 1 == ranks)
                     throw std::runtime_error("out of memory on this host");
