@@ -63,29 +63,40 @@ void check_round_trip(const M& m, bool weighted) {
 struct ndcg_mirror {
     std::uint64_t k = 10;
     std::uint8_t gain = 0, no_relevant = 0;
-    std::string name = "NDCG@10";
+    struct id {
+        static constexpr std::string_view key = "query_ndcg";
+    };
+    id measure() const { return {}; }
     std::vector<heldout::query_value> scored = {{5, 0.75, 1}, {7, 0.5, 1}};
     std::vector<std::int64_t> skipped = {9};
     std::uint64_t rows = 9;
     bool weighted = false;
     template <class F>
     void visit_state(F&& f) const {
-        f(k), f(gain), f(no_relevant), f(name), f(scored), f(skipped), f(rows), f(weighted);
+        f(k), f(gain), f(no_relevant), f(scored), f(skipped), f(rows), f(weighted);
     }
 };
 
 /// The same for precision at k (one parameter).
 struct precision_mirror {
     std::uint64_t k = 3;
-    std::string name = "P@3";
+    struct id {
+        static constexpr std::string_view key = "query_precision_at";
+    };
+    id measure() const { return {}; }
     std::vector<heldout::query_value> scored = {{5, 1.0 / 3.0, 1}};
     std::vector<std::int64_t> skipped;
     std::uint64_t rows = 4;
     bool weighted = false;
     template <class F>
     void visit_state(F&& f) const {
-        f(k), f(name), f(scored), f(skipped), f(rows), f(weighted);
+        f(k), f(scored), f(skipped), f(rows), f(weighted);
     }
+};
+
+/// NDCG's layout under P@k's key: passes the key check, fails the layout check.
+struct ndcg_layout_precision_key : ndcg_mirror {
+    precision_mirror::id measure() const { return {}; }
 };
 
 template <class A, class Mirror>
@@ -133,28 +144,27 @@ TEST_SUITE("stream/query_state") {
         CHECK(heldout::deserialize<ndcg_acc>(heldout::serialize(ndcg_mirror{})).value() == 0.625);
     }
 
-    TEST_CASE("another measure with the same layout is refused by its name") {
-        // P@3 and reciprocal rank both hold one unsigned parameter: the schema alone agrees.
-        // (k = 1 reads as if_no_relevant::zero, a valid enumerator, so only the name differs.)
+    TEST_CASE("another measure with the same layout is refused by its key") {
+        // P@k and reciprocal rank both hold one unsigned parameter: the layout alone agrees.
         precision_mirror p;
         p.k = 1;
-        p.name = "P@1";
         const auto e = load_error<heldout::query_accumulator<hm::reciprocal_rank>>(p);
         INFO(e);
-        CHECK(has(e, "measure"));
-        CHECK(has(e, "the bytes hold the state of 'P@1', not of 'reciprocal rank"));
+        CHECK(has(e, "query_precision_at"));
+        CHECK(has(e, "query_reciprocal_rank"));
     }
 
-    TEST_CASE("parameters changed without the name are refused") {
-        ndcg_mirror m;
-        m.k = 5; // the name still says NDCG@10
-        CHECK(has(load_error<ndcg_acc>(m), "'NDCG@10', not of 'NDCG@5'"));
+    TEST_CASE("typed load: other parameters are refused") {
+        auto acc = hm::ndcg{.k = 10}.accumulator();
+        acc.add(heldout::by_query(query, relevance), scores);
+        const auto bytes = heldout::serialize(acc);
+        CHECK(heldout::deserialize(bytes, hm::ndcg{.k = 10}).value() == acc.value());
+        CHECK_THROWS_AS((void)heldout::deserialize(bytes, hm::ndcg{.k = 5}), heldout::input_error);
     }
 
     TEST_CASE("parameters out of range and unknown enumerators are refused") {
         precision_mirror p;
         p.k = 0;
-        p.name = "P@0";
         CHECK(has(load_error<precision_acc>(p), "out of range"));
         ndcg_mirror g;
         g.gain = 7;
@@ -191,7 +201,9 @@ TEST_SUITE("stream/query_state") {
         CHECK(has(load_error<ndcg_acc>(m), "fewer than the 3 queries held"));
     }
 
-    TEST_CASE("bytes of another layout are refused") {
-        CHECK(has(load_error<precision_acc>(ndcg_mirror{}), "different accumulator type or layout"));
+    TEST_CASE("bytes of another measure or layout are refused") {
+        CHECK(has(load_error<precision_acc>(ndcg_mirror{}), "query_ndcg")); // by the key first
+        // the right key over NDCG's layout: refused by the layout
+        CHECK(has(load_error<precision_acc>(ndcg_layout_precision_key{}), "different accumulator type or layout"));
     }
 }

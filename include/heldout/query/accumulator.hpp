@@ -30,13 +30,13 @@
 // the scored queries have zero total weight. merge() refuses the state of another measure
 // (state_error).
 //
-// State in bytes (heldout::serialize / deserialize, stream/serialize.hpp): the measure's
-// parameters (those of k, gain, no_relevant it has), its name() (the identity: the query
-// measures carry no `key`, so the name, which shows the type and every non-default
-// parameter, is compared on load), then the scored (query, value, weight) triples, the
-// skipped ids, the row count and the weighted flag. check_state() refuses a name that is not
-// the loaded measure's, parameters the measure refuses, values or weights that are negative or
-// not finite, weights other than 1 in an unweighted state, and fewer rows than queries.
+// State in bytes (heldout::serialize / deserialize, stream/serialize.hpp): the header carries
+// the measure's `key` (its type: "query_ndcg", ...), then come the measure's parameters (those
+// of k, gain, no_relevant it has), the scored (query, value, weight) triples, the skipped
+// ids, the row count and the weighted flag. deserialize refuses another key (P@k bytes loaded
+// as reciprocal rank) and deserialize(bytes, m) other parameters; check_state() refuses
+// parameters the measure refuses, values or weights that are negative or not finite, weights
+// other than 1 in an unweighted state, and fewer rows than queries.
 #pragma once
 
 #include <heldout/core/error.hpp>
@@ -109,8 +109,8 @@ constexpr bool counts_empty_as_zero(const M& m) {
 template <class M>
 class query_accumulator {
 public:
-    query_accumulator() : name_(m_.name()) {}
-    explicit query_accumulator(const M& m) : m_(m), name_(m_.name()) {}
+    query_accumulator() = default;
+    explicit query_accumulator(const M& m) : m_(m) {}
 
     /// Adds a batch of whole queries.
     template <class Q, class R, real_range P>
@@ -171,11 +171,10 @@ public:
     /// Whether a weighted batch was added.
     bool weighted() const noexcept { return weighted_; }
 
-    /// Serialisation: parameters, identity, then the state (see the header comment).
+    /// Serialisation: parameters, then the state (see the header comment; the key is in the header).
     template <class F>
     void visit_state(F&& f) {
         visit_parameters(m_, f);
-        f(name_);
         f(scored_);
         f(skipped_);
         f(rows_);
@@ -184,7 +183,6 @@ public:
     template <class F>
     void visit_state(F&& f) const {
         visit_parameters(m_, f);
-        f(name_);
         f(scored_);
         f(skipped_);
         f(rows_);
@@ -200,8 +198,6 @@ public:
             if (m_.no_relevant != if_no_relevant::skip && m_.no_relevant != if_no_relevant::zero)
                 detail::fail_loaded("no_relevant", "is not a heldout::if_no_relevant");
         detail::check_loaded_parameters("measure", [&] { m_.validate("measure " + m_.name()); });
-        if (name_ != m_.name())
-            detail::fail_loaded("measure", "the bytes hold the state of '" + name_ + "', not of '" + m_.name() + "'");
         for (std::size_t i = 0; i < scored_.size(); ++i) {
             const query_value& q = scored_[i];
             if (!std::isfinite(q.value) || q.value < 0)
@@ -351,7 +347,6 @@ private:
     }
 
     M m_{};
-    std::string name_; // m_.name(), kept for the bytes (see visit_state)
     std::vector<query_value> scored_;
     std::vector<std::int64_t> skipped_;
     std::size_t rows_ = 0;

@@ -16,6 +16,7 @@
 // O(n + k log k) per query with a cutoff; the whole list sorts the query.
 #pragma once
 
+#include <heldout/core/capabilities.hpp>
 #include <heldout/core/traits.hpp>
 #include <heldout/detail/query_rank.hpp>
 #include <heldout/query/accumulator.hpp>
@@ -35,6 +36,8 @@ namespace measure {
 /// Average precision at k (k = 0: the whole list); see the header comment.
 struct average_precision_at {
     static constexpr direction better = direction::higher_is_better;
+    using capabilities = offers<cap::serialisable>;
+    static constexpr std::string_view key = "query_average_precision_at"; ///< identity in bytes
     using prediction = kinds::query_score;
     using truth = kinds::graded_relevance;
 

@@ -19,6 +19,7 @@
 // with .no_relevant = if_no_relevant::zero); its DCG is 0, which counts.
 #pragma once
 
+#include <heldout/core/capabilities.hpp>
 #include <heldout/core/traits.hpp>
 #include <heldout/detail/query_rank.hpp>
 #include <heldout/query/accumulator.hpp>
@@ -52,6 +53,8 @@ namespace measure {
 /// Normalised discounted cumulated gain at k (k = 0: the whole list); see the header comment.
 struct ndcg {
     static constexpr direction better = direction::higher_is_better;
+    using capabilities = offers<cap::serialisable>;
+    static constexpr std::string_view key = "query_ndcg"; ///< identity in bytes
     using prediction = kinds::query_score;
     using truth = kinds::graded_relevance;
 
@@ -83,6 +86,8 @@ struct ndcg {
 /// Discounted cumulated gain at k (k = 0: the whole list); defined (0) without relevant items.
 struct dcg {
     static constexpr direction better = direction::higher_is_better;
+    using capabilities = offers<cap::serialisable>;
+    static constexpr std::string_view key = "query_dcg"; ///< identity in bytes
     using prediction = kinds::query_score;
     using truth = kinds::graded_relevance;
 

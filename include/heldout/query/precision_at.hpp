@@ -16,6 +16,7 @@
 // k must be positive (input_error for k = 0).
 #pragma once
 
+#include <heldout/core/capabilities.hpp>
 #include <heldout/core/traits.hpp>
 #include <heldout/detail/query_rank.hpp>
 #include <heldout/query/accumulator.hpp>
@@ -42,6 +43,8 @@ namespace measure {
 /// Precision at k: share of the top k that is relevant (divided by k); see the header comment.
 struct precision_at {
     static constexpr direction better = direction::higher_is_better;
+    using capabilities = offers<cap::serialisable>;
+    static constexpr std::string_view key = "query_precision_at"; ///< identity in bytes
     using prediction = kinds::query_score;
     using truth = kinds::graded_relevance;
 
@@ -61,6 +64,8 @@ struct precision_at {
 /// Recall at k: share of the query's relevant items in the top k; see the header comment.
 struct recall_at {
     static constexpr direction better = direction::higher_is_better;
+    using capabilities = offers<cap::serialisable>;
+    static constexpr std::string_view key = "query_recall_at"; ///< identity in bytes
     using prediction = kinds::query_score;
     using truth = kinds::graded_relevance;
 

@@ -11,6 +11,7 @@
 // x = 0 .. n - r, and E[RR] = sum_x P(X = x) / (s + x). O(n) per query, no sort.
 #pragma once
 
+#include <heldout/core/capabilities.hpp>
 #include <heldout/core/traits.hpp>
 #include <heldout/detail/query_rank.hpp>
 #include <heldout/query/accumulator.hpp>
@@ -28,6 +29,8 @@ namespace measure {
 /// Reciprocal rank of the first relevant item; see the header comment.
 struct reciprocal_rank {
     static constexpr direction better = direction::higher_is_better;
+    using capabilities = offers<cap::serialisable>;
+    static constexpr std::string_view key = "query_reciprocal_rank"; ///< identity in bytes
     using prediction = kinds::query_score;
     using truth = kinds::graded_relevance;
 
