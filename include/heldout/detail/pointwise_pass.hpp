@@ -151,9 +151,6 @@ struct pass_totals {
 
 inline constexpr std::size_t pass_chunk = 512;
 inline constexpr std::size_t pass_lanes = 8;
-/// Chunks whose lane sums are taken in one loop (see pointwise_pass_body): 4 x 8 double lanes
-/// are 8 independent AVX2 vectors, as many as two adders with a 4-cycle latency keep busy.
-inline constexpr std::size_t pass_group = 4;
 /// Chunks ahead that a pass asks the memory system for (see prefetch_rows).
 inline constexpr std::size_t pass_prefetch_ahead = 2;
 
@@ -173,207 +170,159 @@ HELDOUT_DETAIL_INLINE void pointwise_pass_body(std::string_view who, const Term&
     using TY = typename Term::template truth_buffer<Y, P>;
     using R = decltype(term.fast(TY{}, P{}));
     constexpr bool weighted = !std::is_void_v<W>;
-    constexpr std::size_t G = pass_group;
     alignas(64) TY ty[std::is_same_v<TY, Y> ? 1 : pass_chunk];
-    alignas(64) R buf[G * pass_chunk];
-    alignas(64) double wb[weighted ? G * pass_chunk : 1];
-    const auto fold = [](const double* a) { return ((a[0] + a[1]) + (a[2] + a[3])) + ((a[4] + a[5]) + (a[6] + a[7])); };
-    // Compute-bound double terms, unweighted: the terms go straight into the lanes, saving a
-    // store and a load a row; a flagged chunk discards them. Double log loss at 1e6 rows:
-    // 4.4x -> 3.8-4.0x the baseline's time. Only in the wide pass, whose order may differ from
-    // the other clones': 4 blocks of 8 lanes (4 independent vectors of 8 doubles, enough to
-    // hide the add latency), folded block by block.
-    constexpr bool fuse = !weighted && term_wide_pass<Term> && std::is_same_v<R, double>;
-    constexpr std::size_t fused_lanes = 4 * pass_lanes;
-    for (std::size_t gstart = 0; gstart < n; gstart += G * pass_chunk) {
-        std::array<bool, G> exact{};
-        std::array<double, G> sum{}, wsum{};
-        std::array<std::size_t, G> cs{};
-        std::size_t chunks = 0;
-        // Phase 1, chunk by chunk: conversion, flags and terms (into buf, or fused into sums).
-        for (std::size_t g = 0; g < G; ++g) {
-            const std::size_t start = gstart + g * pass_chunk;
-            if (start >= n)
-                break;
-            ++chunks;
-            const std::size_t c = n - start < pass_chunk ? n - start : pass_chunk;
-            cs[g] = c;
-            if constexpr (term_wide_pass<Term>) {
-                if (const std::size_t ahead = start + pass_prefetch_ahead * pass_chunk; ahead < n) {
-                    const std::size_t end = n - ahead < pass_chunk ? n : ahead + pass_chunk;
-                    prefetch_rows(p, ahead, end);
-                    prefetch_rows(y, ahead, end);
-                    if constexpr (weighted)
-                        prefetch_rows(w, ahead, end);
-                }
+    alignas(64) R buf[pass_chunk];
+    alignas(64) double wb[weighted ? pass_chunk : 1];
+    const auto fold = [](const std::array<double, pass_lanes>& a) {
+        return ((a[0] + a[1]) + (a[2] + a[3])) + ((a[4] + a[5]) + (a[6] + a[7]));
+    };
+    for (std::size_t start = 0; start < n; start += pass_chunk) {
+        const std::size_t c = n - start < pass_chunk ? n - start : pass_chunk;
+        if constexpr (term_wide_pass<Term>) {
+            if (const std::size_t ahead = start + pass_prefetch_ahead * pass_chunk; ahead < n) {
+                const std::size_t end = n - ahead < pass_chunk ? n : ahead + pass_chunk;
+                prefetch_rows(p, ahead, end);
+                prefetch_rows(y, ahead, end);
+                if constexpr (weighted)
+                    prefetch_rows(w, ahead, end);
             }
-            const P* __restrict pc = p + start;
-            const TY* __restrict yv;
-            R* __restrict bc = buf + g * pass_chunk;
-            bool ex = false;
-            if constexpr (std::is_same_v<TY, Y>) {
-                yv = y + start;
-            } else {
-                // Integer truth: converted here; 0/1 is checked on the raw labels (nearly free).
-                const Y* __restrict yc = y + start;
-                decltype(truth_flag(Y{})) yflag = 0;
-                for (std::size_t k = 0; k < c; ++k) {
-                    if constexpr (Term::binary_truth)
-                        yflag |= truth_flag(yc[k]);
-                    ty[k] = static_cast<TY>(yc[k]);
-                }
-                ex = yflag != 0;
-                yv = ty;
-            }
-            decltype(term.flag(TY{}, P{})) flag = 0;
-            decltype(truth_flag(TY{})) tflag = 0;
-            alignas(64) std::array<double, fused_lanes> fused{};
-            double fused_tail = 0;
-            if constexpr (!fuse) {
-                for (std::size_t k = 0; k < c; ++k) {
-                    flag |= term.flag(yv[k], pc[k]);
-                    if constexpr (Term::binary_truth && std::is_same_v<TY, Y> && std::is_floating_point_v<Y>)
-                        tflag |= truth_flag(yv[k]); // floating truth: checked here
-                    bc[k] = term.fast(yv[k], pc[k]);
-                }
-            } else {
-                std::size_t k = 0;
-                for (; k + fused_lanes <= c; k += fused_lanes)
-                    for (std::size_t j = 0; j < fused_lanes; ++j) {
-                        flag |= term.flag(yv[k + j], pc[k + j]);
-                        if constexpr (Term::binary_truth && std::is_same_v<TY, Y> && std::is_floating_point_v<Y>)
-                            tflag |= truth_flag(yv[k + j]);
-                        fused[j] += static_cast<double>(term.fast(yv[k + j], pc[k + j]));
-                    }
-                for (; k < c; ++k) {
-                    flag |= term.flag(yv[k], pc[k]);
-                    if constexpr (Term::binary_truth && std::is_same_v<TY, Y> && std::is_floating_point_v<Y>)
-                        tflag |= truth_flag(yv[k]);
-                    fused_tail += static_cast<double>(term.fast(yv[k], pc[k]));
-                }
-            }
-            ex = ex || flag_set(flag) || flag_set(tflag);
-            if constexpr (weighted) {
-                const W* __restrict wc = w + start;
-                double* __restrict wbc = wb + g * pass_chunk;
-                decltype(weight_flag(W{})) wflag = 0;
-                for (std::size_t k = 0; k < c; ++k) {
-                    wflag |= weight_flag(wc[k]);
-                    wbc[k] = static_cast<double>(wc[k]);
-                }
-                ex = ex || flag_set(wflag);
-            }
-            wsum[g] = static_cast<double>(c);
-            if constexpr (fuse) {
-                if (!ex) {
-                    sum[g] = ((fold(&fused[0]) + fold(&fused[8])) + (fold(&fused[16]) + fold(&fused[24]))) + fused_tail;
-                    ex = !std::isfinite(sum[g]); // a NaN, overflow, or an input to report
-                }
-            }
-            exact[g] = ex;
         }
-        // Phase 2: each chunk's sum in 8 fixed double lanes, rows k + j into lane j, folded
-        // in a fixed order. The lanes of different chunks are independent, so a group of
-        // full, unflagged chunks is summed in one loop (G x 8 lanes: enough independent
-        // vector adds to hide their latency) with exactly the same result per chunk.
+        const P* __restrict pc = p + start;
+        const TY* __restrict yv;
+        bool exact = false;
+        if constexpr (std::is_same_v<TY, Y>) {
+            yv = y + start;
+        } else {
+            // Integer truth: converted here; 0/1 is checked on the raw labels (nearly free).
+            const Y* __restrict yc = y + start;
+            decltype(truth_flag(Y{})) yflag = 0;
+            for (std::size_t k = 0; k < c; ++k) {
+                if constexpr (Term::binary_truth)
+                    yflag |= truth_flag(yc[k]);
+                ty[k] = static_cast<TY>(yc[k]);
+            }
+            exact = yflag != 0;
+            yv = ty;
+        }
+        decltype(term.flag(TY{}, P{})) flag = 0;
+        decltype(truth_flag(TY{})) tflag = 0;
+        // Compute-bound double terms, unweighted: the terms go straight into the lanes, saving
+        // a store and a load a row; a flagged chunk discards them. Double log loss at 1e6 rows:
+        // 4.4x -> 3.8-4.0x the baseline's time. Only in the wide pass, whose order may differ
+        // from the other clones': 4 blocks of 8 lanes, i.e. 4 independent vectors of 8 doubles
+        // (one block was one chain of dependent adds, latency-bound in cache), folded block by
+        // block. In-cache MSE, 1e4 rows: 0.44-0.56x -> 0.40-0.46x the baseline's time (see
+        // docs/measures-pointwise.md).
+        constexpr bool fuse = !weighted && term_wide_pass<Term> && std::is_same_v<R, double>;
+        constexpr std::size_t fused_lanes = 4 * pass_lanes;
+        alignas(64) std::array<double, fused_lanes> fused{};
+        double fused_tail = 0;
         if constexpr (!fuse) {
-            bool together = chunks == G;
-            for (std::size_t g = 0; g < chunks; ++g)
-                together = together && cs[g] == pass_chunk && !exact[g];
-            if (together) {
-                alignas(64) std::array<double, G * pass_lanes> lane{};
-                alignas(64) std::array<double, G * pass_lanes> wlane{};
-                for (std::size_t k = 0; k < pass_chunk; k += pass_lanes)
-                    for (std::size_t g = 0; g < G; ++g)
-                        for (std::size_t j = 0; j < pass_lanes; ++j) {
-                            const std::size_t at = g * pass_chunk + k + j;
-                            if constexpr (weighted) {
-                                lane[g * pass_lanes + j] += wb[at] * static_cast<double>(buf[at]);
-                                wlane[g * pass_lanes + j] += wb[at];
-                            } else {
-                                lane[g * pass_lanes + j] += static_cast<double>(buf[at]);
-                            }
-                        }
-                for (std::size_t g = 0; g < G; ++g) {
-                    sum[g] = fold(&lane[g * pass_lanes]) + 0.0; // + the (empty) tail, as below
-                    if constexpr (weighted)
-                        wsum[g] = fold(&wlane[g * pass_lanes]) + 0.0;
-                    exact[g] = !std::isfinite(sum[g]) || !std::isfinite(wsum[g]);
+            for (std::size_t k = 0; k < c; ++k) {
+                flag |= term.flag(yv[k], pc[k]);
+                if constexpr (Term::binary_truth && std::is_same_v<TY, Y> && std::is_floating_point_v<Y>)
+                    tflag |= truth_flag(yv[k]); // floating truth: checked here
+                buf[k] = term.fast(yv[k], pc[k]);
+            }
+        } else {
+            std::size_t k = 0;
+            for (; k + fused_lanes <= c; k += fused_lanes)
+                for (std::size_t j = 0; j < fused_lanes; ++j) {
+                    flag |= term.flag(yv[k + j], pc[k + j]);
+                    if constexpr (Term::binary_truth && std::is_same_v<TY, Y> && std::is_floating_point_v<Y>)
+                        tflag |= truth_flag(yv[k + j]);
+                    fused[j] += static_cast<double>(term.fast(yv[k + j], pc[k + j]));
                 }
-            } else {
-                for (std::size_t g = 0; g < chunks; ++g) {
-                    if (exact[g])
-                        continue;
-                    const std::size_t c = cs[g];
-                    const R* bc = buf + g * pass_chunk;
-                    const double* wbc = wb + (weighted ? g * pass_chunk : 0);
-                    std::array<double, pass_lanes> lane{};
-                    std::array<double, pass_lanes> wlane{};
-                    double tail = 0, wtail = 0;
-                    std::size_t k = 0;
-                    for (; k + pass_lanes <= c; k += pass_lanes)
-                        for (std::size_t j = 0; j < pass_lanes; ++j) {
-                            if constexpr (weighted) {
-                                lane[j] += wbc[k + j] * static_cast<double>(bc[k + j]);
-                                wlane[j] += wbc[k + j];
-                            } else {
-                                lane[j] += static_cast<double>(bc[k + j]);
-                            }
-                        }
-                    for (; k < c; ++k) {
-                        if constexpr (weighted) {
-                            tail += wbc[k] * static_cast<double>(bc[k]);
-                            wtail += wbc[k];
-                        } else {
-                            tail += static_cast<double>(bc[k]);
-                        }
-                    }
-                    sum[g] = fold(lane.data()) + tail;
-                    if constexpr (weighted)
-                        wsum[g] = fold(wlane.data()) + wtail;
-                    exact[g] = !std::isfinite(sum[g]) || !std::isfinite(wsum[g]); // NaN, overflow, or bad input
-                }
+            for (; k < c; ++k) {
+                flag |= term.flag(yv[k], pc[k]);
+                if constexpr (Term::binary_truth && std::is_same_v<TY, Y> && std::is_floating_point_v<Y>)
+                    tflag |= truth_flag(yv[k]);
+                fused_tail += static_cast<double>(term.fast(yv[k], pc[k]));
             }
         }
-        // Phase 3, in chunk order: flagged chunks redone exactly, then every chunk's sums
-        // into the compensated totals (the same additions in the same order as chunk by chunk).
-        for (std::size_t g = 0; g < chunks; ++g) {
-            if (exact[g]) {
-                // Element by element in double, checking in index order so that the first bad
-                // element is the one reported.
-                const std::size_t start = gstart + g * pass_chunk;
-                std::array<double, pass_lanes> lane{};
-                std::array<double, pass_lanes> wlane{};
-                double inf_w = 0;
-                for (std::size_t k = 0; k < cs[g]; ++k) {
-                    const std::size_t i = start + k;
-                    term.check(who, y[i], p[i], i);
-                    double wk = 1.0;
+        exact = exact || flag_set(flag) || flag_set(tflag);
+        if constexpr (weighted) {
+            const W* __restrict wc = w + start;
+            decltype(weight_flag(W{})) wflag = 0;
+            for (std::size_t k = 0; k < c; ++k) {
+                wflag |= weight_flag(wc[k]);
+                wb[k] = static_cast<double>(wc[k]);
+            }
+            exact = exact || flag_set(wflag);
+        }
+        double sum = 0, wsum = static_cast<double>(c);
+        if constexpr (fuse) {
+            if (!exact) {
+                const auto block = [&](std::size_t b) {
+                    std::array<double, pass_lanes> a{};
+                    for (std::size_t j = 0; j < pass_lanes; ++j)
+                        a[j] = fused[b * pass_lanes + j];
+                    return fold(a);
+                };
+                sum = ((block(0) + block(1)) + (block(2) + block(3))) + fused_tail;
+                exact = !std::isfinite(sum); // a NaN, overflow, or an input to report
+            }
+        } else if (!exact) {
+            std::array<double, pass_lanes> lane{};
+            std::array<double, pass_lanes> wlane{};
+            double tail = 0, wtail = 0;
+            std::size_t k = 0;
+            for (; k + pass_lanes <= c; k += pass_lanes)
+                for (std::size_t j = 0; j < pass_lanes; ++j) {
                     if constexpr (weighted) {
-                        check_weight_at(who, w[i], i);
-                        wk = static_cast<double>(w[i]);
+                        lane[j] += wb[k + j] * static_cast<double>(buf[k + j]);
+                        wlane[j] += wb[k + j];
+                    } else {
+                        lane[j] += static_cast<double>(buf[k + j]);
                     }
-                    const double v = term.exact(static_cast<double>(y[i]), static_cast<double>(p[i]));
-                    if (!std::isfinite(v)) {
-                        if (!(Term::infinite_ok && v == std::numeric_limits<double>::infinity()))
-                            term.report(who, static_cast<double>(y[i]), static_cast<double>(p[i]), i);
-                        if (wk > 0)
-                            inf_w += wk;
-                    } else if (wk > 0) {
-                        lane[k % pass_lanes] += wk * v;
-                    }
-                    wlane[k % pass_lanes] += wk;
                 }
-                sum[g] = fold(lane.data());
-                wsum[g] = fold(wlane.data());
-                if (!std::isfinite(sum[g]) || !std::isfinite(wsum[g]))
-                    fail(who, "prediction", "arithmetic overflow (values too large for double)");
-                out.infinite_weight += inf_w;
-                wsum[g] -= inf_w; // weight is kept as finite part + infinite part
+            for (; k < c; ++k) {
+                if constexpr (weighted) {
+                    tail += wb[k] * static_cast<double>(buf[k]);
+                    wtail += wb[k];
+                } else {
+                    tail += static_cast<double>(buf[k]);
+                }
             }
-            out.loss.add(sum[g]);
-            out.weight.add(wsum[g]);
+            sum = fold(lane) + tail;
+            if constexpr (weighted)
+                wsum = fold(wlane) + wtail;
+            exact = !std::isfinite(sum) || !std::isfinite(wsum); // a NaN, overflow, or an input to report
         }
+        if (exact) {
+            // Element by element in double, checking in index order so that the first bad
+            // element is the one reported.
+            std::array<double, pass_lanes> lane{};
+            std::array<double, pass_lanes> wlane{};
+            double inf_w = 0;
+            for (std::size_t k = 0; k < c; ++k) {
+                const std::size_t i = start + k;
+                term.check(who, y[i], p[i], i);
+                double wk = 1.0;
+                if constexpr (weighted) {
+                    check_weight_at(who, w[i], i);
+                    wk = static_cast<double>(w[i]);
+                }
+                const double v = term.exact(static_cast<double>(y[i]), static_cast<double>(p[i]));
+                if (!std::isfinite(v)) {
+                    if (!(Term::infinite_ok && v == std::numeric_limits<double>::infinity()))
+                        term.report(who, static_cast<double>(y[i]), static_cast<double>(p[i]), i);
+                    if (wk > 0)
+                        inf_w += wk;
+                } else if (wk > 0) {
+                    lane[k % pass_lanes] += wk * v;
+                }
+                wlane[k % pass_lanes] += wk;
+            }
+            sum = fold(lane);
+            wsum = fold(wlane);
+            if (!std::isfinite(sum) || !std::isfinite(wsum))
+                fail(who, "prediction", "arithmetic overflow (values too large for double)");
+            out.infinite_weight += inf_w;
+            wsum -= inf_w; // weight is kept as finite part + infinite part
+        }
+        out.loss.add(sum);
+        out.weight.add(wsum);
     }
 }
 
