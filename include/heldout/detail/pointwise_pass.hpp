@@ -206,16 +206,12 @@ HELDOUT_DETAIL_INLINE void pointwise_pass_body(std::string_view who, const Term&
         }
         decltype(term.flag(TY{}, P{})) flag = 0;
         decltype(truth_flag(TY{})) tflag = 0;
-        // Compute-bound double terms, unweighted: the terms go straight into the lanes, saving
-        // a store and a load a row; a flagged chunk discards them. Double log loss at 1e6 rows:
-        // 4.4x -> 3.8-4.0x the baseline's time. Only in the wide pass, whose order may differ
-        // from the other clones': 4 blocks of 8 lanes, i.e. 4 independent vectors of 8 doubles
-        // (one block was one chain of dependent adds, latency-bound in cache), folded block by
-        // block. In-cache MSE, 1e4 rows: 0.44-0.56x -> 0.40-0.46x the baseline's time (see
-        // docs/measures-pointwise.md).
+        // Compute-bound double terms, unweighted: the terms go straight into the lanes (the
+        // same lanes and order as the summing loop below), saving a store and a load a row; a
+        // flagged chunk discards them. Double log loss at 1e6 rows: 4.4x -> 3.8-4.0x the
+        // baseline's time.
         constexpr bool fuse = !weighted && term_wide_pass<Term> && std::is_same_v<R, double>;
-        constexpr std::size_t fused_lanes = 4 * pass_lanes;
-        alignas(64) std::array<double, fused_lanes> fused{};
+        std::array<double, pass_lanes> fused{};
         double fused_tail = 0;
         if constexpr (!fuse) {
             for (std::size_t k = 0; k < c; ++k) {
@@ -226,8 +222,8 @@ HELDOUT_DETAIL_INLINE void pointwise_pass_body(std::string_view who, const Term&
             }
         } else {
             std::size_t k = 0;
-            for (; k + fused_lanes <= c; k += fused_lanes)
-                for (std::size_t j = 0; j < fused_lanes; ++j) {
+            for (; k + pass_lanes <= c; k += pass_lanes)
+                for (std::size_t j = 0; j < pass_lanes; ++j) {
                     flag |= term.flag(yv[k + j], pc[k + j]);
                     if constexpr (Term::binary_truth && std::is_same_v<TY, Y> && std::is_floating_point_v<Y>)
                         tflag |= truth_flag(yv[k + j]);
@@ -253,13 +249,7 @@ HELDOUT_DETAIL_INLINE void pointwise_pass_body(std::string_view who, const Term&
         double sum = 0, wsum = static_cast<double>(c);
         if constexpr (fuse) {
             if (!exact) {
-                const auto block = [&](std::size_t b) {
-                    std::array<double, pass_lanes> a{};
-                    for (std::size_t j = 0; j < pass_lanes; ++j)
-                        a[j] = fused[b * pass_lanes + j];
-                    return fold(a);
-                };
-                sum = ((block(0) + block(1)) + (block(2) + block(3))) + fused_tail;
+                sum = fold(fused) + fused_tail;
                 exact = !std::isfinite(sum); // a NaN, overflow, or an input to report
             }
         } else if (!exact) {
