@@ -549,7 +549,7 @@ void summary(const R& rep, std::FILE* out) {
         if (h == rep.seen.end() || b == rep.seen.end())
             continue;
         const double th = p.wall ? h->second.real : h->second.cpu, tb = p.wall ? b->second.real : b->second.cpu;
-        std::fprintf(out, "  %-56s heldout %9.2f ms  baseline %9.2f ms  ratio %6.2f%s%s\n", p.area, th * 1e3, tb * 1e3,
+        std::fprintf(out, "  %-56s heldout %9.3f ms  baseline %9.3f ms  ratio %6.2f%s%s\n", p.area, th * 1e3, tb * 1e3,
                      tb / th, *p.target ? "  target " : "", p.target);
     }
 }
