@@ -67,6 +67,34 @@ def pairs_of(doc, repetitions):
     return found
 
 
+def shown(seconds):
+    """ms, or µs for the in-cache rows (a few µs an iteration)."""
+    return f"{seconds * 1e3:.1f} ms" if seconds >= 1e-4 else f"{seconds * 1e6:.2f} µs"
+
+
+def cpu_model():
+    """The CPU's model string and vendor (each figure names its CPU: vendors differ in bandwidth)."""
+    model, vendor = "?", "?"
+    try:
+        with open("/proc/cpuinfo") as f:
+            for line in f:
+                key, _, value = line.partition(":")
+                if key.strip() == "model name" and model == "?":
+                    model = value.strip()
+                elif key.strip() == "vendor_id" and vendor == "?":
+                    vendor = value.strip()
+    except OSError:
+        pass
+    return f"{model} ({vendor})"
+
+
+def load_text():
+    try:
+        return ", ".join(f"{x:.1f}" for x in os.getloadavg())
+    except OSError:
+        return "?"
+
+
 def table(found, context):
     lines = [
         "| Area | heldout | baseline (same run) | ratio | target |",
@@ -79,10 +107,11 @@ def table(found, context):
         tb, label, _ = sides["baseline"]
         target = next((t for k, t in TARGETS.items() if area.startswith(k)), "")
         clock = " (wall)" if wall else ""
-        lines.append(f"| {area} | {th * 1e3:.1f} ms{clock} | {label}: {tb * 1e3:.1f} ms | "
+        lines.append(f"| {area} | {shown(th)}{clock} | {label}: {shown(tb)} | "
                      f"{tb / th:.2f}x | {target} |")
     lines.append("")
     lines.append(f"Measured {context.get('date', '?')[:10]} on {context.get('num_cpus', '?')} shared vCPUs "
+                 f"of {cpu_model()} (load average {load_text()} when the run ended) "
                  "(g++ 12 -O3, Release); ratio = baseline time / heldout time in the same run, CPU time "
                  "except the scaling rows. Regenerate: `/usr/bin/python3 bench/perf_table.py`.")
     return "\n".join(lines)

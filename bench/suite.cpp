@@ -90,6 +90,13 @@ constexpr std::size_t fold_rows = 10'000'000;
 constexpr std::size_t boot_rows = 1'000'000;
 constexpr std::size_t boot_replicates = 200;
 
+/// In-cache rows (2 x 40 KB of floats: L2-resident on any current x86 core), where memory
+/// bandwidth hides nothing: bounds the ratio on a CPU with more bandwidth per core.
+constexpr std::size_t cache_rows = 10'000;
+const regression_data& regression_in_cache() {
+    static const regression_data d(cache_rows);
+    return d;
+}
 const regression_data& regression() {
     static const regression_data d(pointwise_rows);
     return d;
@@ -247,6 +254,40 @@ void pointwise_read_baseline(benchmark::State& st) {
     set_bytes(st, 8 * pointwise_rows);
     st.SetLabel("plain multi-lane sum of the same floats (read limit)");
 }
+
+void cache_read_baseline(benchmark::State& st) {
+    const auto& d = regression_in_cache();
+    for (auto _ : st)
+        benchmark::DoNotOptimize(plain_sum_floats(d.y.data(), d.f.data(), cache_rows));
+    set_bytes(st, 8 * cache_rows);
+    st.SetLabel("plain multi-lane sum of the same floats, in cache");
+}
+void cache_squares_baseline(benchmark::State& st) {
+    const auto& d = regression_in_cache();
+    for (auto _ : st)
+        benchmark::DoNotOptimize(plain_sum_squares(d.y.data(), d.f.data(), cache_rows));
+    set_bytes(st, 8 * cache_rows);
+    st.SetLabel("plain multi-lane sum of (y - f)^2, in cache");
+}
+/// MSE over the in-cache rows through clone Which (best_isa(): the pass chosen here).
+template <int Which>
+void cache_mse_heldout(benchmark::State& st) {
+    const auto& d = regression_in_cache();
+    const auto which = Which < 0 ? heldout::detail::best_isa() : static_cast<heldout::detail::isa>(Which);
+    if (!heldout::detail::isa_supported(which)) {
+        st.SkipWithError("this CPU lacks the clone's instructions");
+        return;
+    }
+    for (auto _ : st) {
+        auto acc = heldout::measure::mse{}.accumulator();
+        acc.add_using(which, d.y, d.f);
+        benchmark::DoNotOptimize(acc.value());
+    }
+    set_bytes(st, 8 * cache_rows);
+    if (Which >= 0)
+        st.SetLabel(std::string(heldout::detail::isa_name(which)) + " clone forced");
+}
+constexpr int avx2_forced = static_cast<int>(heldout::detail::isa::avx2);
 
 void error_heldout(benchmark::State& st) {
     const auto& d = labels(2);
@@ -434,6 +475,12 @@ const pair_spec pairs[] = {
     {"pointwise: MSE vs read limit, 1e7 float rows", pointwise_read_heldout, pointwise_read_baseline, ">= 0.8", false,
      false},
     {"pointwise: MSE vs float sum of squares, 1e7 rows", pointwise_heldout, pointwise_baseline, "", false, false},
+    {"pointwise: MSE vs read limit, 1e4 rows in cache", cache_mse_heldout<-1>, cache_read_baseline, ">= 0.8", false,
+     false},
+    {"pointwise: MSE (AVX2 forced) vs read limit, 1e4 in cache", cache_mse_heldout<avx2_forced>, cache_read_baseline,
+     ">= 0.8", false, false},
+    {"pointwise: MSE vs float sum of squares, 1e4 in cache", cache_mse_heldout<-1>, cache_squares_baseline, "", false,
+     false},
     {"labels: classification error, 1e7 byte labels", error_heldout, error_baseline, "", false, false},
     {"labels: balanced accuracy (3 x 3 table), 1e7 rows", confusion_heldout, confusion_baseline, "", false, false},
     {"probabilities: log loss vs textbook, 2e6 rows", log_loss_heldout, log_loss_baseline, "", false, false},
@@ -502,7 +549,7 @@ void summary(const R& rep, std::FILE* out) {
         if (h == rep.seen.end() || b == rep.seen.end())
             continue;
         const double th = p.wall ? h->second.real : h->second.cpu, tb = p.wall ? b->second.real : b->second.cpu;
-        std::fprintf(out, "  %-56s heldout %9.2f ms  baseline %9.2f ms  ratio %6.2f%s%s\n", p.area, th * 1e3, tb * 1e3,
+        std::fprintf(out, "  %-56s heldout %9.3f ms  baseline %9.3f ms  ratio %6.2f%s%s\n", p.area, th * 1e3, tb * 1e3,
                      tb / th, *p.target ? "  target " : "", p.target);
     }
 }
