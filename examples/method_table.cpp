@@ -27,6 +27,7 @@ std::string needs_text(heldout::need set) {
         {need::apparent, "the apparent result"},
         {need::five_by_two, "the 10 splits of five_by_two"},
         {need::resamplable, "resamplable rows"},
+        {need::query_values, "per-query values of two rankers (compare_queries)"},
     };
     std::string s;
     for (const auto& [n, w] : words)

@@ -6,8 +6,11 @@
 #include <heldout/measure/classification_error.hpp>
 #include <heldout/plan/five_by_two.hpp>
 #include <heldout/plan/holdout.hpp>
+#include <heldout/plan/leave_one_out.hpp>
+#include <heldout/plan/purged_kfold.hpp>
 #include <heldout/plan/repeated_kfold.hpp>
 #include <heldout/plan/subsampling.hpp>
+#include <heldout/plan/walk_forward.hpp>
 
 #include "support/reference.hpp"
 
@@ -160,6 +163,56 @@ TEST_SUITE("compare/comparison") {
             "2-fold, in order). Methods that apply here: paired::corrected_t (the default here), "
             "paired::naive_t",
             heldout::input_error);
+    }
+    TEST_CASE("paired::automatic per plan kind: corrected t only on random splits") {
+        // Differences d_j on each plan's splits; the design comes from the plan itself.
+        auto diffs = [](std::size_t k) {
+            std::vector<double> d(k);
+            for (std::size_t j = 0; j < k; ++j)
+                d[j] = 0.1 * static_cast<double>(j % 3) - 0.05;
+            return d;
+        };
+        const std::size_t n = 24;
+        {
+            auto r = heldout::repeated_kfold{.folds = 4, .repeats = 2, .seed = 5}.splits(n);
+            auto [a, b] = with_differences(r, diffs(r.size()));
+            CHECK(heldout::compare(a, b, mean_prediction{}).method == heldout::paired::method_id::corrected_t);
+        }
+        auto refuses = [&](const heldout::aggregator& a, const heldout::aggregator& b, heldout::split_design d,
+                           std::string_view words) {
+            CAPTURE(words);
+            try {
+                (void)heldout::compare(a, b, mean_prediction{});
+                FAIL("paired::automatic did not refuse");
+            } catch (const heldout::input_error& e) {
+                const std::string what = e.what();
+                CHECK(what.find("no paired method has a valid default for " + std::string(words)) != std::string::npos);
+                CHECK(what.find(std::string(heldout::rule_for(d).why)) != std::string::npos);
+                CHECK(what.find("paired::naive_t") != std::string::npos);
+            }
+            CHECK_THROWS_AS((void)heldout::compare(a, b, mean_prediction{}, heldout::paired::corrected_t),
+                            heldout::input_error);
+        };
+        {
+            auto r = heldout::leave_one_out{}.splits(n);
+            auto [a, b] = with_differences(r, diffs(r.size()));
+            refuses(a, b, heldout::split_design::leave_one_out, "leave-one-out");
+        }
+        {
+            auto r = heldout::walk_forward{.initial = 8, .horizon = 4, .step = 4}.splits(n);
+            auto [a, b] = with_differences(r, diffs(r.size()));
+            refuses(a, b, heldout::split_design::time_ordered, "time-ordered splits");
+        }
+        {
+            std::vector<int> t0(n), t1(n);
+            for (std::size_t i = 0; i < n; ++i) {
+                t0[i] = static_cast<int>(i);
+                t1[i] = static_cast<int>(i) + 2;
+            }
+            auto r = heldout::purged_kfold{.folds = 4}.splits(heldout::intervals(t0, t1));
+            auto [a, b] = with_differences(r, diffs(r.size()));
+            refuses(a, b, heldout::split_design::purged, "purged k-fold");
+        }
     }
     TEST_CASE("different splits are refused, naming the first mismatch") {
         const std::vector<double> d(10, 0.0);

@@ -378,7 +378,7 @@ TEST_SUITE("estimate/aggregator") {
         CHECK(*p.se == doctest::Approx(std::sqrt(mv.variance)).epsilon(1e-14));
     }
 
-    TEST_CASE("one test set, AUC: ci::delong (the default) is delong_auc on the recorded scores") {
+    TEST_CASE("one test set, AUC: ci::delong is delong_auc on the recorded scores; 10 per class -> Newcombe default") {
         const std::vector<int> y{1, 1, 1, 1, 1, 1, 1, 1, 1, 1, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0};
         const std::vector<double> s{.90, .80, .80, .70, .65, .60, .55, .50, .40, .30,
                                     .70, .60, .45, .40, .35, .30, .20, .20, .10, .05};
@@ -386,8 +386,18 @@ TEST_SUITE("estimate/aggregator") {
         std::iota(rows.begin(), rows.end(), std::size_t{0});
         aggregator agg(measure::auc{});
         agg.record(split{{}, rows, 0, 0, 0, {}}, y, s);
-        const auto e = agg.estimate(measure::auc{});
+        // 10 positives and 10 negatives: below delong_small_class, so the default is Newcombe's interval
+        const auto auto_e = agg.estimate(measure::auc{});
+        CHECK(auto_e.method == ci::method_id::newcombe);
+        const auto nw = heldout::newcombe_auc_interval(y, s, 0.95);
+        CHECK(*auto_e.lower == nw.lower);
+        CHECK(*auto_e.upper == nw.upper);
+        CHECK(auto_e.cautions.empty());
+        const auto e = agg.estimate(measure::auc{}, ci::delong);
         CHECK(e.method == ci::method_id::delong);
+        REQUIRE(e.cautions.size() == 1); // DeLong asked for by name: the small classes are named
+        CHECK(e.cautions[0] == "only 10 positives (10 positive, 10 negative): the DeLong interval may cover less than "
+                               "its level below 30 in a class (docs/intervals.md, coverage study)");
         CHECK(e.value == doctest::Approx(0.84).epsilon(1e-14));          // 21/25, DeLong et al. (1988) example data
         CHECK(*e.se == doctest::Approx(0.0899382504215).epsilon(1e-10)); // DeLong et al. 1988 (R)
         const auto d = heldout::delong_auc(y, s, 0.95);

@@ -149,7 +149,7 @@ TEST_SUITE("estimate/estimate") {
         CHECK(heldout::to_json(e) ==
               "{\"measure\":\"x\",\"method\":\"bootstrap_632\",\"method_label\":\".632 bootstrap\",\"level\":0.95,"
               "\"value\":1,\"se\":null,\"lower\":null,\"upper\":null,\"pooled\":null,\"splits\":0,"
-              "\"observations\":0,\"notes\":[],\"per_split\":[]}");
+              "\"observations\":0,\"notes\":[],\"cautions\":[],\"per_split\":[]}");
         heldout::detail::json_writer w;
         w.begin_object().member("tab", "a\tb\x01").end_object();
         CHECK(w.str() == "{\"tab\":\"a\\tb\\u0001\"}");
@@ -159,20 +159,20 @@ TEST_SUITE("estimate/estimate") {
         std::ostringstream os;
         heldout::write_csv(os, {cv_estimate()});
         const std::string expect =
-            "record,measure,method,level,value,se,lower,upper,pooled,splits,observations,split,repeat,fold,"
-            "train_size,test_size,notes\n"
-            "estimate,MSE,corrected_t,0.95,0.30000000000000004,0.3333333333333333,0.2123456,0.4,1e-300,2,200,,,,,,"
-            "\"1 of 3 splits undefined: constant truth, \"\"flat\"\"; line\nbreak, and comma\"\n"
-            "split,MSE,corrected_t,0.95,0.25,,,,,,,0,0,0,200,100,\n"
-            "split,MSE,corrected_t,0.95,,,,,,,,1,0,1,200,100,flat\n"
-            "split,MSE,corrected_t,0.95,0.35000000000000003,,,,,,,2,0,2,200,100,\n";
+            "record,model,measure,method,level,value,se,lower,upper,pooled,splits,observations,split,repeat,fold,"
+            "train_size,test_size,notes,cautions\n"
+            "estimate,,MSE,corrected_t,0.95,0.30000000000000004,0.3333333333333333,0.2123456,0.4,1e-300,2,200,,,,,,"
+            "\"1 of 3 splits undefined: constant truth, \"\"flat\"\"; line\nbreak, and comma\",\n"
+            "split,,MSE,corrected_t,0.95,0.25,,,,,,,0,0,0,200,100,,\n"
+            "split,,MSE,corrected_t,0.95,,,,,,,,1,0,1,200,100,flat,\n"
+            "split,,MSE,corrected_t,0.95,0.35000000000000003,,,,,,,2,0,2,200,100,,\n";
         CHECK(os.str() == expect);
-        // every row has the header's 17 fields (outside quotes)
+        // every row has the header's 19 fields (outside quotes)
         std::size_t fields = 1;
         bool quoted = false;
         for (char c : std::string(heldout::csv_header))
             fields += c == ',';
-        CHECK(fields == 17);
+        CHECK(fields == 19);
         std::size_t commas = 0, rows = 0;
         for (char c : expect) {
             if (c == '"')
@@ -180,11 +180,27 @@ TEST_SUITE("estimate/estimate") {
             else if (c == ',' && !quoted)
                 ++commas;
             else if (c == '\n' && !quoted) {
-                CHECK(commas == 16);
+                CHECK(commas == 18);
                 commas = 0;
                 ++rows;
             }
         }
         CHECK(rows == 5);
+    }
+
+    TEST_CASE("cautions show in the line, the JSON and the CSV") {
+        estimate e = cv_estimate();
+        e.cautions = {"only 4 positives (4 positive, 16 negative): check", "second, with comma"};
+        std::ostringstream line;
+        line << e;
+        CHECK(line.str() == "MSE 0.3 [0.2123, 0.4] 95% corrected t (Nadeau-Bengio), 2 of 3 splits, n=200; caution: "
+                            "only 4 positives (4 positive, 16 negative): check; caution: second, with comma");
+        const std::string j = heldout::to_json(e);
+        CHECK(j.find("\"cautions\":[\"only 4 positives (4 positive, 16 negative): check\",\"second, with comma\"]") !=
+              std::string::npos);
+        std::ostringstream csv;
+        heldout::write_csv(csv, {e});
+        CHECK(csv.str().find(",\"only 4 positives (4 positive, 16 negative): check; second, with comma\"\n") !=
+              std::string::npos);
     }
 }

@@ -37,6 +37,7 @@ TEST_SUITE("query/estimate_queries") {
         CHECK(*e.upper == doctest::Approx(t.upper).epsilon(1e-14));
         CHECK(e.method == heldout::ci::method_id::t);
         CHECK(e.observations == 7);
+        CHECK(e.method_label == "Student t over queries; 0 queries with no relevant item skipped");
         // Equal weights other than 1 change nothing.
         const auto e3 = estimate_queries(result_of(v, std::vector<double>(7, 3.0)), 0.9);
         CHECK(*e3.se == doctest::Approx(t.se).epsilon(1e-14));

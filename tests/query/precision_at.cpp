@@ -61,10 +61,10 @@ TEST_SUITE("query/precision_at") {
         CHECK(recall_at{.k = 5, .no_relevant = heldout::if_no_relevant::zero}.name() == "R@5 (no relevant item = 0)");
     }
 
-    TEST_CASE("tie-exact = the mean over every order of the tied items (enumerated), 3000 random small queries") {
+    TEST_CASE("tie-exact = the mean over every order of the tied items (enumerated), 2000 random small queries") {
         std::mt19937 g(7);
         using B = heldout_test::strict_order;
-        for (int t = 0; t < 3000; ++t) {
+        for (int t = 0; t < 2000; ++t) {
             const auto c = heldout_test::random_small_query(g);
             const std::size_t k = std::uniform_int_distribution<std::size_t>(1, c.scores.size() + 2)(g);
             const double p = heldout_test::over_tie_orders(

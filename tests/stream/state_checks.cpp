@@ -2,6 +2,8 @@
 // the header, the typed load deserialize(bytes, m), every accumulator's check_state() on bytes
 // with a right checksum but inconsistent content, and merges of differently configured
 // accumulators. Each case here failed (or crashed under ASan) before the checks existed.
+#include "stream/state_samples.hpp"
+
 #include <heldout/measure/calibration_error.hpp>
 #include <heldout/measure/mae.hpp>
 #include <heldout/measure/mean_loss.hpp>
@@ -18,6 +20,22 @@
 
 namespace {
 namespace hm = heldout::measure;
+using namespace stream_cases;
+
+/// Two accumulators of the same type but other parameters, each fed a few rows: merge must
+/// refuse (heldout::input_error), and leave the target as it was.
+template <input K, class M>
+void check_merge_refused(const M& a, const M& b) {
+    const data d(30, 9);
+    auto x = a.accumulator();
+    auto y = b.accumulator();
+    feed<K>(x, d, 0, d.n, false);
+    feed<K>(y, d, 0, d.n, false);
+    const auto before = heldout::serialize(x);
+    INFO(a.name() << " <- " << b.name());
+    CHECK_THROWS_AS(x.merge(y), heldout::input_error);
+    CHECK(heldout::serialize(x) == before);
+}
 
 /// Bytes of `mirror` (a struct visiting the same fields as an accumulator) carrying `key`,
 /// with a valid checksum: what a corrupted or hostile sender could produce.
@@ -183,5 +201,47 @@ TEST_SUITE("stream/state_checks") {
         c.add(y, heldout::rows(p, 3));
         d.add(y, heldout::rows(p, 3));
         CHECK_THROWS_AS(c.merge(d), heldout::input_error);
+    }
+    TEST_CASE("every differently configured pair of accumulators refuses to merge") {
+        check_merge_refused<input::real>(hm::mean_loss<heldout::loss::huber>{{1.5}},
+                                         hm::mean_loss<heldout::loss::huber>{{1.0}});
+        check_merge_refused<input::real>(hm::mean_loss<heldout::loss::pinball>{{0.9}},
+                                         hm::mean_loss<heldout::loss::pinball>{{0.5}});
+        check_merge_refused<input::margin>(hm::mean_loss<heldout::loss::zero_one>{{0.2}},
+                                           hm::mean_loss<heldout::loss::zero_one>{{0.0}});
+        check_merge_refused<input::probability>(hm::cross_entropy{1e-12}, hm::cross_entropy{1e-15});
+        check_merge_refused<input::rows3>(hm::multiclass_cross_entropy{1e-9}, hm::multiclass_cross_entropy{0});
+        check_merge_refused<input::probability>(hm::calibration_error{.bins = 10}, hm::calibration_error{.bins = 15});
+        check_merge_refused<input::probability>(hm::calibration_error{},
+                                                hm::calibration_error{.binning = hm::bin_rule::equal_count});
+        check_merge_refused<input::probability>(hm::calibration_error{},
+                                                hm::calibration_error{.variant = hm::calibration_variant::top_label});
+        check_merge_refused<input::probability>(hm::calibration_error{},
+                                                hm::calibration_error{.statistic = hm::calibration_statistic::maximum});
+        check_merge_refused<input::rows3>(hm::multiclass_calibration_error{.bins = 8},
+                                          hm::multiclass_calibration_error{.bins = 9});
+        check_merge_refused<input::rows3>(hm::multiclass_auc{},
+                                          hm::multiclass_auc{hm::multiclass_auc_method::one_vs_rest_weighted});
+        check_merge_refused<input::labels3>(hm::classification_error{}, hm::classification_error{.classes = 3});
+        check_merge_refused<input::labels3>(hm::accuracy{}, hm::accuracy{.classes = 4});
+        check_merge_refused<input::labels3>(hm::balanced_accuracy{}, hm::balanced_accuracy{.classes = 3});
+        check_merge_refused<input::labels3>(hm::f_beta{.beta = 2, .combination = hm::class_combination::mean},
+                                            hm::f_beta{.beta = 1, .combination = hm::class_combination::mean});
+        check_merge_refused<input::labels3>(
+            hm::recall{.combination = hm::class_combination::one_vs_rest, .positive = 2},
+            hm::recall{.combination = hm::class_combination::one_vs_rest, .positive = 1});
+        check_merge_refused<input::labels2>(hm::precision{}, hm::precision{.positive = 0});
+        check_merge_refused<input::labels2>(hm::mcc{}, hm::mcc{.classes = 2});
+        check_merge_refused<input::labels3>(hm::cohen_kappa{hm::kappa_weighting::quadratic},
+                                            hm::cohen_kappa{hm::kappa_weighting::linear});
+        Eigen::MatrixXd c1(3, 3), c2(3, 3);
+        c1 << 0, 1, 2, 5, 0, 1, 9, 3, 0;
+        c2 << 0, 1, 2, 5, 0, 1, 9, 4, 0;
+        check_merge_refused<input::labels3>(hm::cost_weighted_error{c1}, hm::cost_weighted_error{c2});
+        check_merge_refused<input::score>(hm::binned_auc{.bins = 64}, hm::binned_auc{.bins = 32});
+        check_merge_refused<input::score>(hm::auprc{hm::pr_start::first_precision}, hm::auprc{});
+        check_merge_refused<input::score>(hm::partial_auc{.fpr_high = 0.3}, hm::partial_auc{.fpr_high = 0.4});
+        check_merge_refused<input::score>(heldout::at_threshold(hm::classification_error{}, 0.5),
+                                          heldout::at_threshold(hm::classification_error{}, 0.3));
     }
 }

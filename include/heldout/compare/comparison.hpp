@@ -10,8 +10,8 @@
 //   auto m = heldout::compare(error, truth, labels_a, labels_b, heldout::paired::mcnemar_exact);
 //   auto d = heldout::compare(heldout::measure::auc{}, truth, scores_a, scores_b);   // DeLong
 //   auto b = heldout::compare(m, truth, f_a, f_b, heldout::paired::bootstrap_bca(5000, 7));
-//   auto all = heldout::compare_all_pairs(models, mse, heldout::paired::automatic, 0.95,
-//                                         {"ridge", "tree", "knn"});
+//   auto all = heldout::compare_all_pairs(models, mse);   // names from aggregator::set_model
+//   // (or pass them: compare_all_pairs(models, mse, paired::automatic, 0.95, {"ridge", "tree", "knn"}))
 //   heldout::write_csv(std::cout, all);   // Holm-adjusted p-values in adjusted_p_value
 //
 // `difference` is always measure(A) - measure(B): with an error (lower is better) a positive
@@ -96,7 +96,8 @@ struct comparison {
     std::string method_label;                                ///< its printed name
     std::size_t splits = 0;                                  ///< splits behind the comparison
     std::size_t observations = 0;                            ///< test rows behind it (repeats counted each time)
-    std::vector<std::string> notes;                          ///< what the reader must know
+    std::vector<std::string> notes;                          ///< how it was made
+    std::vector<std::string> cautions;                       ///< why the test may not keep its level
 
     bool has_interval() const noexcept { return lower.has_value() && upper.has_value(); }
 };
@@ -118,6 +119,8 @@ inline std::ostream& operator<<(std::ostream& os, const comparison& c) {
         s += " (Holm " + readable_number(*c.adjusted_p_value) + ")";
     s += "; " + std::to_string(c.splits) + (c.splits == 1 ? " split" : " splits") +
          ", n=" + std::to_string(c.observations);
+    for (const auto& k : c.cautions)
+        s += "; caution: " + k;
     return os << s;
 }
 
@@ -146,6 +149,10 @@ inline void write_comparison_json(json_writer& w, const comparison& c) {
     for (const auto& n : c.notes)
         w.value(n);
     w.end_array();
+    w.key("cautions").begin_array();
+    for (const auto& k : c.cautions)
+        w.value(k);
+    w.end_array();
     w.end_object();
 }
 
@@ -171,22 +178,24 @@ inline void write_json(std::ostream& os, std::span<const comparison> cs) {
 /// The CSV header written by write_csv for comparisons.
 inline constexpr std::string_view comparison_csv_header =
     "measure,model_a,model_b,method,level,difference,se,lower,upper,statistic,df,df2,p_value,adjusted_p_value,"
-    "splits,observations,notes";
+    "splits,observations,notes,cautions";
 
 /// CSV with a header line and one row per comparison (RFC 4180 quoting, round-trip numbers).
 inline void write_csv(std::ostream& os, std::span<const comparison> cs) {
     os << comparison_csv_header << '\n';
     for (const auto& c : cs) {
-        std::string notes;
+        std::string notes, cautions;
         for (const auto& n : c.notes)
             notes += (notes.empty() ? "" : "; ") + n;
+        for (const auto& k : c.cautions)
+            cautions += (cautions.empty() ? "" : "; ") + k;
         os << detail::csv_field(c.measure) << ',' << detail::csv_field(c.model_a) << ',' << detail::csv_field(c.model_b)
            << ',' << paired::id_text(c.method) << ',' << detail::number_text(c.level) << ','
            << detail::number_text(c.difference) << ',' << detail::csv_number(c.se) << ',' << detail::csv_number(c.lower)
            << ',' << detail::csv_number(c.upper) << ',' << detail::number_text(c.statistic) << ','
            << detail::csv_number(c.df) << ',' << detail::csv_number(c.df2) << ',' << detail::number_text(c.p_value)
            << ',' << detail::csv_number(c.adjusted_p_value) << ',' << c.splits << ',' << c.observations << ','
-           << detail::csv_field(notes) << '\n';
+           << detail::csv_field(notes) << ',' << detail::csv_field(cautions) << '\n';
     }
 }
 
@@ -279,7 +288,7 @@ inline void bootstrap_fill(comparison& c, paired::method_id id, double theta, bo
     std::string note = std::to_string(set.values.size()) + " paired replicates, seed " + std::to_string(seed) +
                        "; statistic = difference / se; p-value from the replicates (Davison & Hinkley 1997)";
     if (id == paired::method_id::bootstrap_bca)
-        note += "; z0 " + number_text(r.z0) + ", acceleration " + number_text(r.acceleration);
+        note += "; z0 " + note_number(r.z0) + ", acceleration " + note_number(r.acceleration);
     c.notes.push_back(note);
     if (set.undefined > 0)
         c.notes.push_back(std::to_string(set.undefined) + " of " + std::to_string(replicates) +
@@ -316,9 +325,8 @@ inline paired::method_id resolve(paired::method_id requested, const record_shape
             return *d;
         fail(who, "method",
              "no paired method has a valid default for " + std::string(to_string(r.design)) + " (" +
-                 count_text(r.splits, "split") + ") and measure " + measure +
-                 ": the corrected t assumes random train/test splits drawn without replacement "
-                 "(docs/compare.md); methods that apply, each with its caution: " +
+                 count_text(r.splits, "split") + ") and measure " + measure + ": " + std::string(refusal_reason(r)) +
+                 " (docs/compare.md, the rule table). Methods that apply, each with its caution: " +
                  applicable_text(r, f));
     }
     const auto unmet = unmet_needs(paired::info(requested).needs, r, f);
@@ -368,7 +376,7 @@ inline void split_methods(comparison& c, paired::method_id id, std::span<const s
             c.df = 5.0;
             c.p_value = r.t_p_value;
             c.notes.push_back("difference is the mean of the 10 fold differences; t uses the first, " +
-                              number_text(r.first_difference) +
+                              note_number(r.first_difference) +
                               ", and the interval (which inverts the t test) is centred on it");
         } else {
             c.statistic = r.f_statistic;
@@ -392,12 +400,14 @@ inline void split_methods(comparison& c, paired::method_id id, std::span<const s
         c.method_label += kfold ? " (Bouckaert-Frank)" : " (Nadeau-Bengio)";
         c.notes.push_back(std::string(kfold ? "repeated k-fold form (Bouckaert & Frank 2004)"
                                             : "subsampling form (Nadeau & Bengio 2003)") +
-                          ": variance factor 1/J + n_test/n_train with n_train " + number_text(n_train) + ", n_test " +
-                          number_text(n_test) + " (mean recorded sizes)");
+                          ": variance factor 1/J + n_test/n_train with n_train " + note_number(n_train) + ", n_test " +
+                          note_number(n_test) + " (mean recorded sizes)");
     } else {
         r = naive_resampled_t(d, level);
         c.notes.push_back("the naive paired t treats overlapping splits as independent and is known to reject "
                           "far too often (Dietterich 1998; Nadeau & Bengio 2003): use paired::corrected_t");
+        c.cautions.push_back("naive paired t over overlapping splits: known to reject a true null far more often "
+                             "than its level (docs/compare.md, coverage study); for contrast only");
     }
     c.se = r.se;
     c.lower = r.lower;
@@ -431,6 +441,10 @@ comparison compare(const aggregator& agg_a, const aggregator& agg_b, const M& m,
     comparison c;
     c.measure = ta.name;
     c.level = level;
+    if (!agg_a.model().empty()) // named models (aggregator::set_model) name A and B
+        c.model_a = agg_a.model();
+    if (!agg_b.model().empty())
+        c.model_b = agg_b.model();
     record_shape rs = agg_a.method_shape();
     rs.kept_predictions = agg_a.keeps_predictions() && agg_b.keeps_predictions();
     measure_facts f = detail::facts_of(ta);
@@ -482,6 +496,8 @@ comparison compare(const aggregator& agg_a, const aggregator& agg_b, const M& m,
         c.statistic = r.z;
         c.p_value = r.p_value;
         c.notes.push_back("z statistic, normal reference; Wald interval of the difference");
+        if (auto k = detail::small_class_caution(ca.cases.size(), ca.controls.size(), "the paired DeLong test"))
+            c.cautions.push_back(*k);
         return c;
     }
     case paired::method_id::bootstrap_percentile:
@@ -566,10 +582,15 @@ comparison compare_by_distance(const aggregator& agg_a, const aggregator& agg_b,
     return c;
 }
 
-inline std::vector<std::string> model_names(std::size_t k, std::vector<std::string> names) {
+/// The names of k models: those given; else the aggregators' own (aggregator::set_model)
+/// when every one is named; else "model 1", "model 2", ...
+inline std::vector<std::string> model_names(std::span<const aggregator> models, std::vector<std::string> names) {
+    const std::size_t k = models.size();
+    const bool all_named =
+        std::all_of(models.begin(), models.end(), [](const aggregator& a) { return !a.model().empty(); });
     if (names.empty())
         for (std::size_t j = 0; j < k; ++j)
-            names.push_back("model " + std::to_string(j + 1));
+            names.push_back(all_named ? models[j].model() : "model " + std::to_string(j + 1));
     if (names.size() != k)
         fail(who, "names", std::to_string(names.size()) + " names for " + std::to_string(k) + " models");
     return names;
@@ -595,7 +616,7 @@ std::vector<comparison> compare_all_pairs(std::span<const aggregator> models, co
                                           std::vector<std::string> names = {}) {
     if (models.size() < 2)
         detail::fail(detail::cmp::who, "models", "need at least 2 models, got " + std::to_string(models.size()));
-    names = detail::cmp::model_names(models.size(), std::move(names));
+    names = detail::cmp::model_names(models, std::move(names));
     std::vector<comparison> out;
     for (std::size_t i = 0; i < models.size(); ++i)
         for (std::size_t j = i + 1; j < models.size(); ++j) {
@@ -618,7 +639,7 @@ std::vector<comparison> compare_to_reference(std::span<const aggregator> models,
         detail::fail(detail::cmp::who, "reference",
                      "index " + std::to_string(reference) + " outside the " + std::to_string(models.size()) +
                          " models");
-    names = detail::cmp::model_names(models.size(), std::move(names));
+    names = detail::cmp::model_names(models, std::move(names));
     std::vector<comparison> out;
     for (std::size_t i = 0; i < models.size(); ++i) {
         if (i == reference)

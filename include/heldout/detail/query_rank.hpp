@@ -51,12 +51,55 @@ struct query_groups {
     std::vector<std::int64_t> ids;
     std::vector<std::size_t> offsets;
     std::vector<std::size_t> rows;
-    std::vector<std::pair<std::int64_t, std::size_t>> runs; // scratch: (id, run number)
-    std::vector<std::size_t> run_start;                     // scratch
-    std::vector<std::size_t> group_of_run;                  // scratch
+    // scratch: runs of equal ids, their query, and an open-addressing table id -> query
+    std::vector<std::size_t> run_start;
+    std::vector<std::size_t> group_of_run;
+    std::vector<std::int64_t> slot_id;
+    std::vector<std::size_t> slot_group;
 
     bool contiguous() const noexcept { return rows.empty(); }
     std::size_t size() const noexcept { return ids.size(); }
+
+    static constexpr std::size_t empty = static_cast<std::size_t>(-1);
+
+    /// The query number of id, a new one (the next number) when id is new.
+    std::size_t find_or_add(std::int64_t id, bool& added) {
+        if (2 * (ids.size() + 1) > slot_id.size())
+            grow();
+        const std::size_t mask = slot_id.size() - 1;
+        std::size_t i = hash(id) & mask;
+        while (slot_group[i] != empty) {
+            if (slot_id[i] == id) {
+                added = false;
+                return slot_group[i];
+            }
+            i = (i + 1) & mask;
+        }
+        slot_id[i] = id;
+        slot_group[i] = ids.size();
+        ids.push_back(id);
+        added = true;
+        return slot_group[i];
+    }
+
+private:
+    static std::size_t hash(std::int64_t id) noexcept {
+        // Fibonacci hashing: the high bits of id * 2^64/phi, well spread for consecutive ids.
+        return static_cast<std::size_t>((static_cast<std::uint64_t>(id) * 0x9E3779B97F4A7C15ULL) >> 20);
+    }
+    void grow() {
+        const std::size_t cap = slot_id.empty() ? 1024 : 2 * slot_id.size();
+        slot_id.assign(cap, 0);
+        slot_group.assign(cap, empty);
+        const std::size_t mask = cap - 1;
+        for (std::size_t g = 0; g < ids.size(); ++g) {
+            std::size_t i = hash(ids[g]) & mask;
+            while (slot_group[i] != empty)
+                i = (i + 1) & mask;
+            slot_id[i] = ids[g];
+            slot_group[i] = g;
+        }
+    }
 };
 
 template <class Q>
@@ -71,63 +114,44 @@ std::int64_t query_id(Q q, std::size_t i, std::string_view who) {
     return static_cast<std::int64_t>(q);
 }
 
-/// Groups the rows of q by query id: runs of equal ids first (one pass); only when an id
-/// comes back after another one are the rows regrouped (a counting pass, stable).
+/// Groups the rows of q by query id: runs of equal ids (one pass), each run's id looked up in
+/// a hash table (no sort). Only when an id comes back after another one are the rows
+/// regrouped, by a stable counting pass.
 template <class Q>
 void group_queries(std::span<const Q> q, query_groups& g, std::string_view who) {
     g.ids.clear();
     g.offsets.clear();
     g.rows.clear();
     g.run_start.clear();
+    g.group_of_run.clear();
+    std::fill(g.slot_group.begin(), g.slot_group.end(), query_groups::empty);
     const std::size_t n = q.size();
+    bool repeated = false;
     for (std::size_t i = 0; i < n; ++i)
         if (i == 0 || q[i] != q[i - 1]) {
-            g.ids.push_back(query_id(q[i], i, who));
+            bool added = false;
+            g.group_of_run.push_back(g.find_or_add(query_id(q[i], i, who), added));
+            repeated = repeated || !added;
             g.run_start.push_back(i);
         }
     g.run_start.push_back(n);
-    const std::size_t runs = g.ids.size();
-    g.runs.resize(runs);
-    for (std::size_t r = 0; r < runs; ++r)
-        g.runs[r] = {g.ids[r], r};
-    std::sort(g.runs.begin(), g.runs.end());
-    bool repeated = false;
-    for (std::size_t r = 1; r < runs && !repeated; ++r)
-        repeated = g.runs[r].first == g.runs[r - 1].first;
     if (!repeated) {
         g.offsets.assign(g.run_start.begin(), g.run_start.end());
         return;
     }
-    // A query's rows come back after other queries: number the queries by first appearance
-    // (the first run of each id, in run order) and regroup the rows.
-    g.group_of_run.assign(runs, 0);
-    std::vector<std::size_t> first_runs;
+    // A query's rows come back after other queries: regroup them, queries numbered by first
+    // appearance, rows in increasing order within each.
+    const std::size_t groups = g.ids.size(), runs = g.group_of_run.size();
+    g.offsets.assign(groups + 1, 0);
     for (std::size_t r = 0; r < runs; ++r)
-        if (r == 0 || g.runs[r].first != g.runs[r - 1].first)
-            first_runs.push_back(g.runs[r].second);
-    std::sort(first_runs.begin(), first_runs.end());
-    std::size_t first = 0;
-    for (std::size_t r = 0; r < runs; ++r) {
-        if (r == 0 || g.runs[r].first != g.runs[r - 1].first)
-            first = static_cast<std::size_t>(std::lower_bound(first_runs.begin(), first_runs.end(), g.runs[r].second) -
-                                             first_runs.begin());
-        g.group_of_run[g.runs[r].second] = first;
-    }
-    const std::size_t groups = first_runs.size();
-    std::vector<std::int64_t> ids(groups);
-    std::vector<std::size_t> count(groups + 1, 0);
-    for (std::size_t r = 0; r < runs; ++r) {
-        ids[g.group_of_run[r]] = g.ids[r];
-        count[g.group_of_run[r] + 1] += g.run_start[r + 1] - g.run_start[r];
-    }
+        g.offsets[g.group_of_run[r] + 1] += g.run_start[r + 1] - g.run_start[r];
     for (std::size_t k = 0; k < groups; ++k)
-        count[k + 1] += count[k];
-    g.offsets.assign(count.begin(), count.end());
+        g.offsets[k + 1] += g.offsets[k];
+    std::vector<std::size_t> next(g.offsets.begin(), g.offsets.end() - 1);
     g.rows.resize(n);
     for (std::size_t r = 0; r < runs; ++r)
         for (std::size_t i = g.run_start[r]; i < g.run_start[r + 1]; ++i)
-            g.rows[count[g.group_of_run[r]]++] = i;
-    g.ids = std::move(ids);
+            g.rows[next[g.group_of_run[r]]++] = i;
 }
 
 /// Whether every value is finite, in one branch-free (vectorisable) pass: x - x is 0 for a

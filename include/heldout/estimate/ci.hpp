@@ -15,6 +15,8 @@
 //   bca                   one test set: bias-corrected and accelerated bootstrap over the test
 //                         observations, jackknife acceleration (Efron 1987)
 //   delong                one test set, AUC: DeLong, DeLong & Clarke-Pearson (1988) variance
+//   newcombe              one test set, AUC with few positives or negatives: Newcombe's (2006)
+//                         score-type interval (estimate/newcombe_auc.hpp)
 //   corrected_t           several splits without replacement (k-fold, repeated k-fold,
 //                         subsampling): Nadeau & Bengio (2003) corrected resampled t over the
 //                         per-split values, variance factor 1/J + n_test/n_train
@@ -27,10 +29,12 @@
 //   automatic             the valid default for what was run (see below)
 //
 // ci::automatic resolves, from the recorded splits and the measure:
-//   one split: 0/1 losses -> wilson; AUC -> delong; a fitted value -> wald; other pointwise
+//   one split: 0/1 losses -> wilson; AUC -> delong (newcombe when the smaller class has fewer
+//              than delong_small_class = 30 rows); a fitted value -> wald; other pointwise
 //              losses -> t; any other
 //              measure -> bca with 2000 replicates, seed 0;
-//   several splits without replacement -> corrected_t;
+//   several random splits without replacement -> corrected_t; leave-one-out, walk-forward,
+//   purged -> refused (heldout::design_rules);
 //   bootstrap plans (splits carrying draw counts) -> bootstrap_632_plus.
 // A method that does not fit what was run is refused with heldout::input_error saying why
 // (Wilson on pooled cross-validation predictions, corrected t on one test set, ...).
@@ -76,6 +80,7 @@ inline constexpr method corrected_t{method_id::corrected_t};
 inline constexpr method naive_t{method_id::naive_t};
 inline constexpr method bootstrap_632{method_id::bootstrap_632};
 inline constexpr method bootstrap_632_plus{method_id::bootstrap_632_plus};
+inline constexpr method newcombe{method_id::newcombe};
 inline constexpr method wald{method_id::wald};
 
 /// The identifier used in exports ("corrected_t"): the method table's key.

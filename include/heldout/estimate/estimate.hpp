@@ -17,15 +17,19 @@
 //  * splits counts the splits whose values entered the estimate; per_split lists every
 //    recorded split, undefined ones with their reason; observations is the number of test
 //    rows behind the estimate (with repeats counted each time).
-//  * notes say what the reader must know: undefined splits ("3 of 50 splits undefined: only
-//    one class in the test set"), a method known to undercover, how n_train / n_test were
-//    taken.
+//  * notes say how the estimate was made: undefined splits ("3 of 50 splits undefined: only
+//    one class in the test set"), how n_train / n_test were taken, the method's ingredients.
+//  * cautions say why the interval may not keep its level: a small class behind a DeLong
+//    interval ("only 4 positives ..."), a method known to undercover. They are printed after
+//    the line ("; caution: ..."), and exported in JSON ("cautions") and CSV (last column) —
+//    every output shows them.
 #pragma once
 
 #include <heldout/core/error.hpp>
 #include <heldout/detail/json.hpp>
 #include <heldout/estimate/ci.hpp>
 
+#include <algorithm>
 #include <charconv>
 #include <cmath>
 #include <cstddef>
@@ -63,8 +67,10 @@ struct estimate {
     std::size_t splits = 0;                          ///< splits whose values entered the estimate
     std::size_t observations = 0;                    ///< test rows behind the estimate
     std::optional<double> pooled{};                  ///< the measure over all test rows together
-    std::vector<std::string> notes;                  ///< what the reader must know
+    std::vector<std::string> notes;                  ///< how it was made
+    std::vector<std::string> cautions;               ///< why the interval may not keep its level
     std::vector<split_value> per_split;              ///< every recorded split, in record order
+    std::string model{};                             ///< the model's name (aggregator::set_model); empty: unnamed
 
     bool has_interval() const noexcept { return lower.has_value() && upper.has_value(); }
 };
@@ -78,6 +84,32 @@ inline std::string readable_number(double x) {
     char buf[64];
     const auto r = std::to_chars(buf, buf + sizeof buf, x, std::chars_format::general, 4);
     return std::string(buf, r.ptr);
+}
+
+/// Numbers inside notes, for people: whole numbers as they are ("1080"), others with 4
+/// significant digits and no exponent from 1e-4 up ("0.1234", "1079.5", "12346"); the
+/// full-precision values are in the estimate's fields and exports, never in words.
+inline std::string note_number(double x) {
+    if (!std::isfinite(x))
+        return readable_number(x);
+    char buf[64];
+    const double a = std::abs(x);
+    if (a < 1e15 && x == std::round(x)) {
+        const auto r = std::to_chars(buf, buf + sizeof buf, x, std::chars_format::fixed, 0);
+        return std::string(buf, r.ptr);
+    }
+    if (a < 1e-4 || a >= 1e15)
+        return readable_number(x);
+    const int magnitude = static_cast<int>(std::floor(std::log10(a)));
+    const auto r = std::to_chars(buf, buf + sizeof buf, x, std::chars_format::fixed, std::max(0, 3 - magnitude));
+    std::string s(buf, r.ptr);
+    if (s.find('.') != std::string::npos) { // 0.1200 -> 0.12
+        while (s.back() == '0')
+            s.pop_back();
+        if (s.back() == '.')
+            s.pop_back();
+    }
+    return s;
 }
 
 inline std::string level_text(double level) {
@@ -106,6 +138,8 @@ inline std::string csv_number(const std::optional<double>& x) {
 
 inline void write_estimate_json(json_writer& w, const estimate& e) {
     w.begin_object();
+    if (!e.model.empty())
+        w.member("model", e.model);
     w.member("measure", e.measure);
     w.member("method", ci::id_text(e.method));
     w.member("method_label", e.method_label);
@@ -120,6 +154,10 @@ inline void write_estimate_json(json_writer& w, const estimate& e) {
     w.key("notes").begin_array();
     for (const auto& n : e.notes)
         w.value(n);
+    w.end_array();
+    w.key("cautions").begin_array();
+    for (const auto& c : e.cautions)
+        w.value(c);
     w.end_array();
     w.key("per_split").begin_array();
     for (const auto& s : e.per_split) {
@@ -140,12 +178,14 @@ inline void write_estimate_json(json_writer& w, const estimate& e) {
 
 } // namespace detail
 
-/// One line: measure, value, [lower, upper], level, method, splits, rows.
+/// One line: [model:] measure, value, [lower, upper], level, method, splits, rows, then each caution.
 ///   "MSE 0.4123 [0.3712, 0.4551] 95% corrected t (Nadeau-Bengio), 50 splits, n=5000"
+///   "ridge: MSE 0.4123 [0.3712, 0.4551] 95% ..."                       (a named model)
 ///   "AUC 0.871 [0.848, 0.893] 95% DeLong, n=1200"                    (one test set)
 ///   "error rate 0.1872 (.632+ bootstrap, point estimate), 200 splits, n=7350"
 inline std::ostream& operator<<(std::ostream& os, const estimate& e) {
-    std::string s = e.measure + " " + detail::readable_number(e.value);
+    std::string s =
+        (e.model.empty() ? std::string() : e.model + ": ") + e.measure + " " + detail::readable_number(e.value);
     if (e.has_interval()) {
         s += " [" + detail::readable_number(*e.lower) + ", " + detail::readable_number(*e.upper) + "] " +
              detail::level_text(e.level) + " " + e.method_label;
@@ -160,6 +200,8 @@ inline std::ostream& operator<<(std::ostream& os, const estimate& e) {
         s += std::to_string(recorded) + (recorded == 1 ? " split" : " splits");
     }
     s += ", n=" + std::to_string(e.observations);
+    for (const auto& c : e.cautions)
+        s += "; caution: " + c;
     return os << s;
 }
 
@@ -184,27 +226,30 @@ inline void write_json(std::ostream& os, std::initializer_list<estimate> es) {
 }
 
 /// The CSV header written by write_csv.
-inline constexpr std::string_view csv_header = "record,measure,method,level,value,se,lower,upper,pooled,splits,"
-                                               "observations,split,repeat,fold,train_size,test_size,notes";
+inline constexpr std::string_view csv_header = "record,model,measure,method,level,value,se,lower,upper,pooled,splits,"
+                                               "observations,split,repeat,fold,train_size,test_size,notes,cautions";
 
 /// CSV with a header line; per estimate, one `estimate` row then one `split` row per split
-/// (split rows leave the summary columns empty; an undefined split has an empty value and
-/// its reason in notes). Numbers in shortest round-trip form; fields quoted per RFC 4180.
+/// (split rows leave the summary columns and cautions empty; an undefined split has an empty
+/// value and its reason in notes). Numbers in shortest round-trip form; fields quoted per RFC 4180.
 inline void write_csv(std::ostream& os, std::span<const estimate> es) {
     os << csv_header << '\n';
     for (const auto& e : es) {
-        std::string notes;
+        std::string notes, cautions;
         for (const auto& n : e.notes)
             notes += (notes.empty() ? "" : "; ") + n;
-        const std::string head = detail::csv_field(e.measure) + "," + std::string(ci::id_text(e.method)) + "," +
-                                 detail::number_text(e.level);
+        for (const auto& c : e.cautions)
+            cautions += (cautions.empty() ? "" : "; ") + c;
+        const std::string head = detail::csv_field(e.model) + "," + detail::csv_field(e.measure) + "," +
+                                 std::string(ci::id_text(e.method)) + "," + detail::number_text(e.level);
         os << "estimate," << head << "," << detail::number_text(e.value) << "," << detail::csv_number(e.se) << ","
            << detail::csv_number(e.lower) << "," << detail::csv_number(e.upper) << "," << detail::csv_number(e.pooled)
-           << "," << e.splits << "," << e.observations << ",,,,,," << detail::csv_field(notes) << '\n';
+           << "," << e.splits << "," << e.observations << ",,,,,," << detail::csv_field(notes) << ","
+           << detail::csv_field(cautions) << '\n';
         for (const auto& s : e.per_split)
             os << "split," << head << "," << detail::csv_number(s.value) << ",,,,,,," << s.index << "," << s.repeat
                << "," << s.fold << "," << s.train_size << "," << s.test_size << ","
-               << detail::csv_field(s.value ? std::string() : s.undefined_reason) << '\n';
+               << detail::csv_field(s.value ? std::string() : s.undefined_reason) << ",\n";
     }
 }
 inline void write_csv(std::ostream& os, std::initializer_list<estimate> es) {

@@ -17,11 +17,13 @@
 #include <heldout/estimate/delong.hpp>
 #include <heldout/estimate/estimate.hpp>
 #include <heldout/estimate/methods.hpp>
+#include <heldout/estimate/newcombe_auc.hpp>
 #include <heldout/estimate/t_interval.hpp>
 
 #include <cmath>
 #include <cstddef>
 #include <cstdint>
+#include <optional>
 #include <span>
 #include <string>
 #include <string_view>
@@ -50,6 +52,19 @@ inline std::string count_text(std::size_t k, std::string_view what) {
 }
 
 inline std::string method_name(ci::method_id id) { return "ci::" + std::string(ci::info(id).key); }
+
+/// "only 4 positives ..." when a class behind a DeLong variance is small (delong_small_class,
+/// measured in the coverage study), else nothing. what: "the DeLong interval" / "the DeLong test".
+inline std::optional<std::string> small_class_caution(std::size_t cases, std::size_t controls, std::string_view what) {
+    if (cases >= delong_small_class && controls >= delong_small_class)
+        return std::nullopt;
+    const bool few_cases = cases <= controls;
+    const std::size_t k = few_cases ? cases : controls;
+    return "only " + std::to_string(k) + (few_cases ? " positive" : " negative") + (k == 1 ? "" : "s") + " (" +
+           std::to_string(cases) + " positive, " + std::to_string(controls) + " negative): " + std::string(what) +
+           " may cover less than its level below " + std::to_string(delong_small_class) +
+           " in a class (docs/intervals.md, coverage study)";
+}
 
 inline double mean_of(std::span<const double> v) {
     compensated_sum s;
@@ -128,7 +143,7 @@ void estimate_bootstrap(const In& in, estimate& e, ci::method_id id) {
                        ", the model held fixed: " + std::to_string(set.values.size()) + " replicates, seed " +
                        std::to_string(in.method.seed) + "; se is the replicates' standard deviation";
     if (id == ci::method_id::bca)
-        note += "; z0 " + number_text(r.z0) + ", acceleration " + number_text(r.acceleration);
+        note += "; z0 " + note_number(r.z0) + ", acceleration " + note_number(r.acceleration);
     e.notes.push_back(note);
     if (set.undefined > 0)
         e.notes.push_back(std::to_string(set.undefined) + " of " + std::to_string(o.replicates) +
@@ -146,6 +161,21 @@ void estimate_delong(const In& in, estimate& e) {
     e.notes.push_back("DeLong (1988) standard error from the structural components of the " +
                       count_text(c.cases.size(), "case") + " and " + count_text(c.controls.size(), "control") +
                       "; interval on the logit scale, transformed back");
+    if (auto c2 = small_class_caution(c.cases.size(), c.controls.size(), "the DeLong interval"))
+        e.cautions.push_back(*c2);
+}
+
+template <class In>
+void estimate_newcombe(const In& in, estimate& e) {
+    const std::size_t n = in.splits[0].test_size;
+    const auto c = in.track.components(*in.truth, *in.predictions, 0, n);
+    const auto r = newcombe_auc_interval(c.value, c.cases.size(), c.controls.size(), in.level);
+    e.se = r.se;
+    e.lower = r.lower;
+    e.upper = r.upper;
+    e.notes.push_back("Newcombe (2006) score-type interval from the value and the " +
+                      count_text(c.cases.size(), "case") + " and " + count_text(c.controls.size(), "control") +
+                      " (Hanley-McNeil variance at the candidate value, N* = (m + n)/2 - 1)");
 }
 
 template <class In>
@@ -170,8 +200,8 @@ void estimate_resampled_t(const In& in, estimate& e, ci::method_id id) {
         e.lower = r.lower;
         e.upper = r.upper;
         e.notes.push_back("Nadeau-Bengio corrected resampled t over " + count_text(in.values.size(), "split") +
-                          ": variance factor 1/J + n_test/n_train with n_train " + number_text(in.mean_train) +
-                          ", n_test " + number_text(in.mean_test) +
+                          ": variance factor 1/J + n_test/n_train with n_train " + note_number(in.mean_train) +
+                          ", n_test " + note_number(in.mean_test) +
                           (in.sizes_vary ? " (mean sizes over the splits)" : "") + "; df " +
                           std::to_string(in.values.size() - 1));
     } else {
@@ -182,6 +212,8 @@ void estimate_resampled_t(const In& in, estimate& e, ci::method_id id) {
         e.notes.push_back("naive t over " + count_text(in.values.size(), "split") +
                           " treats them as independent; splits share training rows, so it is known to "
                           "undercover (Nadeau & Bengio 2003): use ci::corrected_t");
+        e.cautions.push_back("naive t over overlapping splits: known to undercover (docs/intervals.md, coverage "
+                             "study); for contrast only");
     }
 }
 
@@ -206,12 +238,12 @@ void estimate_632(const In& in, estimate& e, ci::method_id id) {
     const auto r = bootstrap_632(*in.track.apparent, err1, gamma);
     e.value = id == ci::method_id::bootstrap_632 ? r.err_632 : r.err_632_plus;
     e.notes.push_back(
-        "point estimate (no interval): apparent " + number_text(r.apparent) + ", leave-one-out bootstrap " +
-        number_text(err1) + ", no-information " + number_text(gamma) +
+        "point estimate (no interval): apparent " + note_number(r.apparent) + ", leave-one-out bootstrap " +
+        note_number(err1) + ", no-information " + note_number(gamma) +
         (id == ci::method_id::bootstrap_632_plus
-             ? ", relative overfitting " + number_text(r.relative_overfitting) + ", weight " + number_text(r.weight)
+             ? ", relative overfitting " + note_number(r.relative_overfitting) + ", weight " + note_number(r.weight)
              : std::string(", weight 0.632")) +
-        "; mean of the per-split out-of-bag values " + number_text(mean_of(in.values)));
+        "; mean of the per-split out-of-bag values " + note_number(mean_of(in.values)));
     if (const std::size_t never = oob.never_out_of_bag(); never > 0)
         e.notes.push_back(count_text(never, "row") + " never out of bag, left out of the leave-one-out "
                                                      "bootstrap error");
@@ -232,6 +264,8 @@ void run_interval(ci::method_id id, const In& in, estimate& e) {
         return estimate_bootstrap(in, e, id);
     case ci::method_id::delong:
         return estimate_delong(in, e);
+    case ci::method_id::newcombe:
+        return estimate_newcombe(in, e);
     case ci::method_id::corrected_t:
     case ci::method_id::naive_t:
         return estimate_resampled_t(in, e, id);

@@ -81,8 +81,19 @@ struct measure_facts {
     bool case_components = false;
     bool weighted_add = false;
     bool lower_is_better = false;
+    /// Rows in the smaller of the two classes behind a two-sample U statistic (the AUC's
+    /// positives or negatives) on one test set; 0 when unknown or not such a measure.
+    std::size_t smaller_class = 0;
     bool fitted_se = false;
 };
+
+/// Below this many rows in the smaller class, ci::automatic takes ci::newcombe instead of
+/// ci::delong for an AUC on one test set, and a DeLong interval or test carries a caution.
+/// Measured, not assumed: in the shipped coverage study (examples/coverage/, the DeLong rows
+/// of docs/intervals.md) the DeLong logit interval covered 0.84-0.93 at a nominal 0.95 with
+/// 3 to 25 positives (binormal AUC 0.9, 200 negatives), and within 0.015 of its level from 30
+/// on; Newcombe's interval covered at least 0.95 at every size measured.
+inline constexpr std::size_t delong_small_class = 30;
 
 namespace ci {
 
@@ -100,6 +111,7 @@ enum class method_id : unsigned char {
     naive_t,
     bootstrap_632,
     bootstrap_632_plus,
+    newcombe,
     wald
 };
 
@@ -139,6 +151,12 @@ inline constexpr std::array<method_info, 13> methods{{
     {"bootstrap_632_plus", ".632+ bootstrap", "Efron & Tibshirani (1997), JASA 92:548-560, eq. (32)",
      ".632 corrected for overfitting with the no-information error (point estimate)",
      need::bootstrap_splits | need::row_losses | need::lower_is_better | need::apparent, false},
+    {"newcombe", "Newcombe score (small samples)",
+     "Newcombe (2006), Statistics in Medicine 25:559-573, method 10 (recalled); Hanley & McNeil (1982), "
+     "Radiology 143:29-36",
+     "score-type interval of a two-sample U statistic (the ROC AUC) from its value and class counts, "
+     "Hanley-McNeil variance with N* = (m + n)/2 - 1; defined at AUC 0 and 1",
+     need::one_test_set | need::case_components | need::kept_predictions, true},
     {"wald", "Wald (inverse information)", "Wald (1943), Trans. AMS 54:426-482; Cox (1958), Biometrika 45:562-565",
      "value +- z se, se from the inverse Fisher information of the model fitted to one test set "
      "(calibration slope and intercept)",
@@ -297,6 +315,65 @@ inline std::vector<need> unmet_needs(need needs, const record_shape& r, const me
     return out;
 }
 
+/// What ci::automatic and paired::automatic do for each design of splits, and why: the rule
+/// table of docs/intervals.md and docs/compare.md. The corrected t (Nadeau & Bengio 2003)
+/// rests on splits that are exchangeable random draws of a training set and a disjoint test
+/// set: its variance factor 1/J + n_test/n_train models the correlation between two such
+/// draws. Only the random design meets that. For the others no method in the tables has a
+/// justification that holds there (nor a coverage measured by the shipped study), so the
+/// default refuses and the refusal lists what applies, each with its caution, and the way out.
+struct design_rule {
+    split_design design;
+    std::string_view interval_default; ///< what ci::automatic picks with several splits ("" = refuses)
+    std::string_view paired_default;   ///< what paired::automatic picks with several splits ("" = refuses)
+    std::string_view why;              ///< the reason, in words (printed in the refusal)
+};
+
+/// One row per split_design, in its order.
+inline constexpr std::array<design_rule, 5> design_rules{{
+    {split_design::random, "corrected_t", "corrected_t",
+     "random train/test splits drawn without replacement are exchangeable draws, the case the corrected t's "
+     "variance factor 1/J + n_test/n_train was derived for (Nadeau & Bengio 2003); it keeps its level for stable "
+     "learners only (docs/intervals.md, coverage study)"},
+    {split_design::leave_one_out, "", "",
+     "leave-one-out (and leave-one-group-out) test sets are fixed by the rows, not drawn at random, and their "
+     "models share all but one or two rows (groups) of training data: the corrected t's factor 1/J + "
+     "n_test/n_train is not derived for it, and a t over the pooled losses is the naive cross-validation "
+     "interval that Bates, Hastie & Tibshirani (2023) show undercovers; use heldout::nested_cv_interval, or a "
+     "random plan (repeated k-fold, grouped when rows come in groups)"},
+    {split_design::time_ordered, "", "",
+     "walk-forward splits are not exchangeable: the training window grows with time, each test block follows its "
+     "training rows, and neighbouring rows are serially dependent, so neither the corrected t nor a t over "
+     "pooled rows has a justification; report the per-split values, or score one final test period as one test "
+     "set"},
+    {split_design::purged, "", "",
+     "purged k-fold uses contiguous blocks with rows near the test block removed from training: the splits are "
+     "fixed by the row order, not random draws, and rows within a block are dependent, so the corrected t's "
+     "variance factor has no justification; report the per-split values, or hold out one block as one test set"},
+    {split_design::bootstrap, "bootstrap_632_plus", "",
+     "bootstrap samples: the .632+ point estimate (Efron & Tibshirani 1997) for errors with per-row values; no "
+     "paired test here is derived for out-of-bag rows"},
+}};
+
+/// The row of design_rules for a design.
+constexpr const design_rule& rule_for(split_design d) noexcept { return design_rules[static_cast<std::size_t>(d)]; }
+
+static_assert(
+    [] {
+        for (std::size_t i = 0; i < design_rules.size(); ++i)
+            if (static_cast<std::size_t>(design_rules[i].design) != i)
+                return false;
+        return true;
+    }(),
+    "design_rules is indexed by split_design");
+
+/// The reason the default refuses for this record: the design's rule, or mixed designs.
+inline std::string_view refusal_reason(const record_shape& r) {
+    if (r.mixed_designs)
+        return "the splits mix several designs, so no single rule of design_rules applies";
+    return rule_for(r.bootstrap ? split_design::bootstrap : r.design).why;
+}
+
 namespace ci {
 
 /// The interval methods that apply to this record and measure (automatic left out).
@@ -312,25 +389,31 @@ inline std::vector<method_id> applicable(const record_shape& r, const measure_fa
 /// caller refuses, listing applicable()). The rules, in order:
 ///   bootstrap samples                     -> bootstrap_632_plus (errors with per-row values)
 ///   one test set, 0/1 per-row values      -> wilson
-///   one test set, DeLong components       -> delong
+///   one test set, DeLong components       -> delong, or newcombe when the smaller class has
+///                                            fewer than delong_small_class rows
 ///   one test set, a fitted value with se  -> wald
 ///   one test set, per-row values          -> t
 ///   one test set, otherwise               -> bca (weighted add, kept predictions)
 ///   several random splits w/o replacement -> corrected_t
-///   leave-one-out, time-ordered, purged   -> none: no method here has a measured valid default
+///   leave-one-out, time-ordered, purged   -> none: see design_rules for why and what to do
 /// The naive t is never a default.
 inline std::optional<method_id> automatic_choice(const record_shape& r, const measure_facts& f) {
     auto ok = [&](method_id id) { return unmet_needs(info(id).needs, r, f).empty(); };
-    if (r.bootstrap)
-        return ok(method_id::bootstrap_632_plus) ? std::optional(method_id::bootstrap_632_plus) : std::nullopt;
-    if (r.splits == 1) {
-        for (const method_id id : {method_id::wilson, method_id::delong, method_id::wald, method_id::t, method_id::bca})
+    if (r.splits == 1 && !r.bootstrap) {
+        const bool small = f.smaller_class > 0 && f.smaller_class < delong_small_class;
+        for (const method_id id : {method_id::wilson, small ? method_id::newcombe : method_id::delong,
+                                   method_id::wald, method_id::t, method_id::bca})
             if (ok(id))
                 return id;
         return std::nullopt;
     }
-    if (ok(method_id::corrected_t))
-        return method_id::corrected_t;
+    if (r.mixed_designs && !r.bootstrap)
+        return std::nullopt;
+    // several splits: the design's row of design_rules names the default
+    const std::string_view key = rule_for(r.bootstrap ? split_design::bootstrap : r.design).interval_default;
+    for (std::size_t i = 1; i < methods.size(); ++i)
+        if (!key.empty() && methods[i].key == key && ok(static_cast<method_id>(i)))
+            return static_cast<method_id>(i);
     return std::nullopt;
 }
 
@@ -363,8 +446,13 @@ inline std::optional<method_id> automatic_choice(const record_shape& r, const me
                 return id;
         return std::nullopt;
     }
-    if (ok(method_id::corrected_t))
-        return method_id::corrected_t;
+    if (r.mixed_designs)
+        return std::nullopt;
+    // several splits: the design's row of design_rules names the default
+    const std::string_view key = rule_for(r.bootstrap ? split_design::bootstrap : r.design).paired_default;
+    for (std::size_t i = 1; i < methods.size(); ++i)
+        if (!key.empty() && methods[i].key == key && ok(static_cast<method_id>(i)))
+            return static_cast<method_id>(i);
     return std::nullopt;
 }
 

@@ -205,7 +205,7 @@ public:
         visit(*this, f);
     }
 
-    /// After a load (stream/serialize.hpp): bins positive (at most 2^26 with equal-count bins,
+    /// After a load (stream/serialize.hpp): bins positive (at most 2^20 with equal-count bins,
     /// whose value() allocates per bin), known codes, 6 sums per bin (equal width) or rows of
     /// confidence, hit and weight of one length (equal count), confidences in [0, 1], hits
     /// 0/1, finite non-negative weights, finite sums.
@@ -219,8 +219,8 @@ public:
         detail::check_loaded_nonnegative("weight", weight_);
         detail::check_loaded_finite("weight carry", weight_carry_);
         if (equal_count()) {
-            if (bins_ > (std::uint64_t{1} << 26))
-                detail::fail_loaded("bins", "more than 2^26 equal-count bins");
+            if (bins_ > (std::uint64_t{1} << 20))
+                detail::fail_loaded("bins", "more than 2^20 equal-count bins");
             if (!bin_state_.empty())
                 detail::fail_loaded("bin sums", "an equal-count state keeps rows, not bin sums");
             detail::check_loaded_size("rows", conf_.size(), count_, "the row count");

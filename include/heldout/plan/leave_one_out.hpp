@@ -54,6 +54,8 @@ public:
     std::size_t repeats() const noexcept { return 1; }
     std::size_t folds() const noexcept { return size(); }
     bool partitions() const noexcept { return true; }
+    /// Leave-one-group-out too: the test sets are fixed by the rows (groups), not drawn at random.
+    split_design design() const noexcept { return split_design::leave_one_out; }
 
     void make(std::size_t i, workspace& w) const {
         w.repeat = 0;

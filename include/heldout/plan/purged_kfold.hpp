@@ -79,6 +79,7 @@ public:
     }
 
     std::string_view name() const noexcept { return who_; }
+    split_design design() const noexcept { return split_design::purged; }
     std::size_t size() const noexcept { return k_; }
     std::size_t rows() const noexcept { return n_; }
     std::size_t repeats() const noexcept { return 1; }

@@ -229,6 +229,9 @@ public:
                                 i,
                                 w_.has_counts ? std::span<const std::uint32_t>(w_.counts)
                                               : std::span<const std::uint32_t>()};
+            // Plans that are not random draws say so; ci::automatic reads it (estimate/methods.hpp).
+            if constexpr (requires(const Engine& e) { e.design(); })
+                s_.design = e_->design();
 #ifndef NDEBUG
             detail::check_split_basic(e_->name(), s_, e_->rows(), w_.mark);
             e_->check(s_, w_);

@@ -6,8 +6,8 @@
 //   heldout::comparison c = heldout::compare_queries(a, b, {});          // the defaults
 //   auto d = heldout::compare_queries(a, b, {.method = heldout::paired::query_t, .level = 0.9});
 //   std::cout << c << '\n';
-//   // NDCG@10 A - B = 0.0123 [0.0041, 0.0205] 95%, paired randomization (sign flip) over queries 2.95, df 499,
-//   // p = 0.0031; 1 split, n=500
+//   // NDCG@10 (12 queries with no relevant item skipped) A - B = 0.0123 [0.0041, 0.0205] 95%, paired
+//   // randomization (sign flip) over queries 2.95, df 499, p = 0.0031; 1 split, n=500
 //
 // d_q = value_A(q) - value_B(q) over the Q queries scored in both (paired by query id).
 //   difference = Σ w_q d_q / Σ w_q (w = 1 without weights), se = sqrt(Q/(Q-1) Σ w² (d - mean)²) / Σ w
@@ -203,7 +203,8 @@ inline comparison compare_queries(const query_result& a, const query_result& b,
                                         detail::queries_text(q) + " scored");
 
     comparison c;
-    c.measure = a.measure;
+    // The printed line says what happened to queries with no relevant item.
+    c.measure = a.measure + " (" + no_relevant_text(a) + ")";
     c.model_a = o.model_a;
     c.model_b = o.model_b;
     c.level = o.level;

@@ -4,7 +4,8 @@
 //   auto r = heldout::evaluate_queries(heldout::measure::ndcg{.k = 10}, query, relevance, scores);
 //   heldout::estimate e = heldout::estimate_queries(r, 0.95);                 // t over queries
 //   auto b = heldout::estimate_queries(r, 0.95, heldout::ci::bca(5000, 7));    // bootstrap over queries
-//   std::cout << e << '\n';   // NDCG@10 0.7123 [0.7011, 0.7235] 95% Student t over queries, n=950
+//   std::cout << e << '\n';
+//   // NDCG@10 0.7123 [0.7011, 0.7235] 95% Student t over queries; 50 queries with no relevant item skipped, n=950
 //
 // Methods (ci::method; the estimate's n is the number of scored queries):
 //   ci::t (default; ci::automatic picks it)  Student t on the per-query values: mean m =
@@ -113,7 +114,8 @@ inline heldout::estimate estimate_queries(const query_result& r, double level = 
     e.measure = r.measure;
     e.level = level;
     e.method = id;
-    e.method_label = std::string(ci::label(id)) + " over queries";
+    // The printed line says what happened to queries with no relevant item.
+    e.method_label = std::string(ci::label(id)) + " over queries; " + no_relevant_text(r);
     e.observations = q;
     e.value = r.mean;
     e.notes.push_back(detail::queries_text(q) + " scored" + (r.weighted ? " (weighted)" : "") + "; " +

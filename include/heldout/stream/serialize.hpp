@@ -225,7 +225,10 @@ public:
             expect('M');
             const std::uint64_t r = get_u64();
             const std::uint64_t c = get_u64();
-            if (c != 0 && r > (payload_.size() - at_) / 8 / c)
+            // Each dimension alone is bounded too: a 2^64 x 0 matrix holds no byte but its
+            // loops would never end.
+            const std::uint64_t left = payload_.size() - at_;
+            if (r > left || c > left || (c != 0 && r > left / 8 / c))
                 truncated();
             v.resize(static_cast<std::ptrdiff_t>(r), static_cast<std::ptrdiff_t>(c));
             for (std::ptrdiff_t i = 0; i < v.rows(); ++i)
