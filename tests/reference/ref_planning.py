@@ -46,7 +46,7 @@ def hm_se(a, n1, n0):
 
 
 rows = []
-for a in (0.7, 0.85, 0.95):
+for a in (0.3, 0.7, 0.85, 0.95):
     for pi in (0.5, 0.1, 0.03):
         for h in (0.05, 0.03):
             for lev in (0.95, 0.9):

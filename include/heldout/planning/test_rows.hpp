@@ -12,11 +12,13 @@
 //    p = expected, (upper - lower)/2 = z sqrt(n p (1 - p) + z^2/4) / (n + z^2), is at most
 //    half_width (z = the two-sided normal quantile of level).
 //  * test_rows_for_auc(expected_auc, prevalence, half_width, level): z SE(A) <= half_width with
-//    the variance of Hanley & McNeil (1982), Radiology 143:29-36, eq. (2):
+//    the standard error of Hanley & McNeil (1982), Radiology 143:29-36 (their formula with
+//    Q1, Q2 from the negative-exponential model; the equation number is not cited here):
 //      SE^2 = [A(1 - A) + (n1 - 1)(Q1 - A^2) + (n0 - 1)(Q2 - A^2)] / (n1 n0),
 //      Q1 = A / (2 - A), Q2 = 2 A^2 / (1 + A),
 //    n1 = round(n prevalence) positives (halves rounded up) and n0 = n - n1 negatives, both at
-//    least 1 (otherwise the AUC is undefined and the target is not met).
+//    least 1 (otherwise the AUC is undefined and the target is not met). Rounding: n1 is
+//    n * prevalence rounded to the nearest integer, exact halves up (floor(n pi + 1/2)).
 //  * test_rows_for_paired_error(discordant_rate, difference, alpha, power): McNemar's test of
 //    two classifiers on the same rows (Connor 1987, Biometrics 43:207-211): with psi the share
 //    of rows on which exactly one classifier errs and delta the difference of their error
@@ -101,11 +103,9 @@ inline std::uint64_t test_rows_for_proportion(double expected, double half_width
 }
 
 /// Smallest n whose Hanley-McNeil AUC interval half-width z SE is <= half_width.
-inline std::uint64_t test_rows_for_auc(double expected_auc, double prevalence, double half_width,
-                                       double level = 0.95) {
+inline std::uint64_t test_rows_for_auc(double expected_auc, double prevalence, double half_width, double level = 0.95) {
     constexpr std::string_view who = "heldout::test_rows_for_auc";
-    if (!(expected_auc >= 0.5 && expected_auc < 1.0))
-        detail::fail(who, "expected_auc", "must lie in [0.5, 1), got " + detail::number_text(expected_auc));
+    detail::planning::check_open_unit(who, "expected_auc", expected_auc); // at 0 or 1 the SE is 0
     detail::planning::check_open_unit(who, "prevalence", prevalence);
     detail::planning::check_open_unit(who, "half_width", half_width);
     detail::check_level(who, level);
@@ -129,9 +129,8 @@ inline std::uint64_t test_rows_for_paired_error(double discordant_rate, double d
     const double d = std::abs(difference);
     if (!(d > 0.0) || !(d < discordant_rate))
         detail::fail(who, "difference",
-                     "|difference| must be positive and below discordant_rate " +
-                         detail::number_text(discordant_rate) + " (each discordant row favours one classifier), got " +
-                         detail::number_text(difference));
+                     "|difference| must be positive and below discordant_rate " + detail::number_text(discordant_rate) +
+                         " (each discordant row favours one classifier), got " + detail::number_text(difference));
     detail::planning::check_open_unit(who, "alpha", alpha);
     detail::planning::check_open_unit(who, "power", power);
     return detail::planning::smallest(who, "difference", [&](std::uint64_t n) {
