@@ -79,8 +79,8 @@ TEST_SUITE("planning/test_rows") {
                 CHECK(heldout::detail::planning::wilson_half_width(p, static_cast<double>(n), z_of(0.95)) ==
                       doctest::Approx((w.upper - w.lower) / 2).epsilon(1e-12));
             }
-        // Newcombe (1998), Statistics in Medicine 17:857-872, Table I, method 3 (Wilson score),
-        // 81 of 263: 0.2553 to 0.3662 (values from memory): half-width 0.05545 to 4 decimals.
+        // Newcombe (1998), Statistics in Medicine 17:857-872, method 3 (Wilson score; table and
+        // values from memory), 81 of 263: 0.2553 to 0.3662: half-width 0.05545 to 4 decimals.
         CHECK(std::abs(heldout::detail::planning::wilson_half_width(81.0 / 263.0, 263.0, z_of(0.95)) - 0.05545) < 1e-4);
         // So planning for that precision at p = 81/263 asks for about 263 rows (the rounding of
         // the published bounds moves the answer by a row or so).
@@ -176,6 +176,13 @@ TEST_SUITE("planning/test_rows") {
         // = 205.96 -> 206 (own arithmetic; Connor 1987, Biometrics 43:207-211, eq. for n).
         CHECK(test_rows_for_paired_error(0.2, 0.1, 0.05, 0.9) == 206);
         CHECK(test_rows_for_paired_error(0.2, -0.1, 0.05, 0.9) == 206);
+    }
+    TEST_CASE("the examples of docs/planning.md and the header") {
+        // Computed with the numpy/scipy routes of ref_planning.py (scan over n for the AUC:
+        // 1340 rows, 268 positives; Connor's closed form 468.57 -> 469).
+        CHECK(test_rows_for_proportion(0.1, 0.02, 0.95) == 868);
+        CHECK(test_rows_for_auc(0.85, 0.2, 0.03, 0.95) == 1340);
+        CHECK(test_rows_for_paired_error(0.15, 0.05, 0.05, 0.8) == 469);
     }
     TEST_CASE("more precision or power costs rows") {
         CHECK(test_rows_for_proportion(0.1, 0.01, 0.95) > test_rows_for_proportion(0.1, 0.02, 0.95));

@@ -2,9 +2,9 @@
 // rate) known to a given precision, for an AUC known to a given precision, and for a McNemar
 // comparison of two classifiers with a given power.
 //
-//   std::uint64_t a = heldout::test_rows_for_proportion(0.1, 0.02, 0.95);      // error ~10%, +-2 points
-//   std::uint64_t b = heldout::test_rows_for_auc(0.85, 0.2, 0.03, 0.95);       // AUC ~0.85, 20% positives
-//   std::uint64_t c = heldout::test_rows_for_paired_error(0.15, 0.05, 0.05, 0.8);
+//   std::uint64_t a = heldout::test_rows_for_proportion(0.1, 0.02, 0.95);  // error ~10%, +-2 points: 868
+//   std::uint64_t b = heldout::test_rows_for_auc(0.85, 0.2, 0.03, 0.95);   // AUC ~0.85, 20% positives: 1340
+//   std::uint64_t c = heldout::test_rows_for_paired_error(0.15, 0.05, 0.05, 0.8);   // 469
 //
 // Each returns the smallest n for which the target holds, so at n it holds and at n - 1 it
 // does not (each criterion is monotone in n, shown in docs/planning.md):
