@@ -11,12 +11,14 @@
 
 #include <mpi.h>
 
+#include <chrono>
 #include <cmath>
 #include <cstdio>
 #include <cstring>
 #include <span>
 #include <sstream>
 #include <string>
+#include <thread>
 #include <vector>
 
 namespace {
@@ -225,10 +227,13 @@ int main(int argc, char** argv) {
             }
             expect(thrown, "a failed fit throws remote_error on every rank");
 
-            // A fit that fails on the last rank only (whatever it fits).
+            // A fit that fails on the last rank only (whatever it fits). Splits are handed to
+            // whichever rank is free, so the other ranks' fits are slowed (50 ms each) to make
+            // sure the last rank is handed one even when it starts late on a loaded machine.
             auto fails_last = [&](std::span<const std::size_t> train, std::span<const std::size_t> test) {
                 if (rank + 1 == ranks)
                     throw std::runtime_error("out of memory on this host");
+                std::this_thread::sleep_for(std::chrono::milliseconds(50));
                 return model(train, test);
             };
             thrown = false;
