@@ -13,6 +13,7 @@
 #include <heldout/loss.hpp>
 #include <heldout/measure.hpp>
 #include <heldout/plan.hpp>
+#include <heldout/planning.hpp>
 #include <heldout/query.hpp>
 #include <heldout/report.hpp>
 #include <heldout/slices.hpp>
