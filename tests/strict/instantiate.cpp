@@ -3,7 +3,8 @@
 // several integer types, float and double scores, weights), streaming accumulators with
 // merge and serialize / deserialize, evaluate_parallel, the plans (plain, stratified,
 // grouped, nested, time-ordered) with their audit files, the aggregator with estimates and
-// comparisons, the one-test-set methods, the compare tools, early stopping and the plots.
+// comparisons, the one-test-set methods, the compare tools, early stopping, the plots, and the
+// query, censored, calibration, subgroup and planning families.
 // tests/strict.cmake compiles it with g++ and clang++ (libc++) under the strict warning set
 // and -Werror; it is compiled, not run: what it checks is that it builds warning-free.
 #include <heldout/heldout.hpp>
@@ -252,6 +253,34 @@ std::string plots(const std::vector<int>& y, const std::vector<double>& p) {
     return s;
 }
 
+// The families added later: query ranking, censored times, calibration, subgroups, planning.
+double newer_families(const std::vector<int>& yl, const std::vector<double>& pa, const std::vector<double>& pb,
+                      const std::vector<int>& ids, const std::vector<double>& t1) {
+    double v = 0;
+    const std::vector<double> rel(pa.begin(), pa.end());
+    const auto ra = heldout::evaluate_queries(hm::ndcg{.k = 5, .gain = heldout::gain::linear}, ids, yl, pa);
+    const auto rb = heldout::evaluate_queries(hm::ndcg{.k = 5, .gain = heldout::gain::linear}, ids, yl, pb);
+    v += ra.mean + heldout::estimate_queries(ra, 0.9).value + heldout::compare_queries(ra, rb, {}).p_value;
+    v += heldout::evaluate_queries(hm::reciprocal_rank{}, ids, yl, pa).mean;
+    v += heldout::evaluate_queries(hm::average_precision_at{.k = 3}, ids, yl, pa).mean;
+    v += heldout::evaluate(hm::harrell_c{}, heldout::censored(t1, yl), pa);
+    v += heldout::evaluate(hm::calibration_slope{}, yl, pa) + heldout::evaluate(hm::calibration_intercept{}, yl, pa);
+    v += heldout::spiegelhalter_test(yl, pa).p_value;
+    for (const auto& b : heldout::reliability(yl, pa, 5))
+        v += b.upper;
+    heldout::aggregator agg(hm::brier_score{});
+    std::vector<std::size_t> rows(yl.size());
+    for (std::size_t i = 0; i < rows.size(); ++i)
+        rows[i] = i;
+    agg.record(heldout::split{.train = {}, .test = rows}, yl, pa);
+    for (const heldout::slice_estimate& r : heldout::estimate_slices(agg, hm::brier_score{}, ids, {}))
+        v += r.estimate.value;
+    v += static_cast<double>(heldout::test_rows_for_proportion(0.1, 0.02, 0.95) +
+                             heldout::test_rows_for_auc(0.8, 0.1, 0.05, 0.95) +
+                             heldout::test_rows_for_paired_error(0.2, 0.1, 0.05, 0.9));
+    return v;
+}
+
 } // namespace
 
 int main() {
@@ -300,6 +329,7 @@ int main() {
     s += aggregate(y, fa, fb, yl, la, lb, pa, pb);
     s += tools(fa);
     s += static_cast<double>(plots(yl, pa).size());
+    s += newer_families(yl, pa, pb, ids, t1);
     std::cout << s << '\n';
     return 0;
 }
