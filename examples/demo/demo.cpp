@@ -10,7 +10,9 @@
 //   5. the cost-optimal threshold;
 //   6. SVG pictures (ROC curves, calibration diagram, per-fold values) in a directory.
 //
-//   ./build/release/examples/heldout_demo [PLOT_DIR]      (default: ./heldout_demo_plots)
+//   ./build/release/examples/heldout_demo [OUTPUT_DIR]
+// The pictures go to OUTPUT_DIR, by default the build folder's demo_output/ (HELDOUT_DEMO_OUTPUT,
+// set by examples/demo/CMakeLists.txt), never into the source tree.
 #include "knn.hpp"
 #include "logistic.hpp"
 #include "scenario.hpp"
@@ -98,7 +100,10 @@ double whole_set(const M& m, const std::vector<std::uint8_t>& y, const std::vect
 } // namespace
 
 int main(int argc, char** argv) try {
-    const std::filesystem::path plot_dir = argc > 1 ? argv[1] : "heldout_demo_plots";
+#ifndef HELDOUT_DEMO_OUTPUT
+#define HELDOUT_DEMO_OUTPUT "heldout_demo_output"
+#endif
+    const std::filesystem::path plot_dir = argc > 1 ? argv[1] : HELDOUT_DEMO_OUTPUT;
     constexpr std::size_t n = 1200;
     constexpr std::uint64_t seed = 2026;
     const demo::fleet fleet = demo::make_fleet(n, seed);

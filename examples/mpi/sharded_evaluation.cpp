@@ -1,8 +1,8 @@
 // Distributed evaluation on MPI: every rank scores its own shard of a test set, streams it
-// into accumulators of several measure families, and sends their state as bytes
-// (heldout::serialize); rank 0 deserialises, merges the shards in rank order and prints the
-// estimates — then checks them against one machine scoring the whole set, and exits non-zero
-// on any mismatch.
+// into accumulators of several measure families, and heldout::mpi::merge (docs/mpi.md) gives
+// every rank the states merged in rank order (they travel as heldout::serialize bytes); rank 0
+// prints the estimates — then checks them against one machine scoring the whole set, and exits
+// non-zero on any mismatch.
 //
 //   mpirun -np 4 ./example_mpi_sharded_evaluation [rows per rank] [offset]
 //
@@ -14,7 +14,7 @@
 // Families: pointwise (MSE, R-squared, median absolute error), probabilities (cross-entropy,
 // Brier score), labels (classification error, the confusion table), ranking (exact AUC,
 // which carries the scores, and the fixed-memory binned AUC with its error bound).
-// States travel with MPI_Gatherv of raw bytes: the layout is little-endian and versioned
+// States travel as serialised bytes: the layout is little-endian and versioned
 // (docs/streaming.md), so ranks on different hosts need no shared binary format.
 #include <heldout/core/random.hpp>
 #include <heldout/measure/auc.hpp>
@@ -26,6 +26,7 @@
 #include <heldout/measure/mean_loss.hpp>
 #include <heldout/measure/median_absolute_error.hpp>
 #include <heldout/measure/r_squared.hpp>
+#include <heldout/mpi.hpp>
 #include <heldout/stream/serialize.hpp>
 
 #include <mpi.h>
@@ -104,35 +105,25 @@ struct accumulators {
         }
     }
 
-    /// Calls f(acc) on each accumulator in a fixed order (the order of the messages).
+    /// Every rank's accumulators merged in rank order, on every rank (collective).
+    void merge_into(accumulators& out, MPI_Comm comm) const {
+        out.mse = heldout::mpi::merge(mse, comm);
+        out.r2 = heldout::mpi::merge(r2, comm);
+        out.medae = heldout::mpi::merge(medae, comm);
+        out.log_loss = heldout::mpi::merge(log_loss, comm);
+        out.brier = heldout::mpi::merge(brier, comm);
+        out.error = heldout::mpi::merge(error, comm);
+        out.table = heldout::mpi::merge(table, comm);
+        out.auc = heldout::mpi::merge(auc, comm);
+        out.binned = heldout::mpi::merge(binned, comm);
+    }
+
+    /// Calls f(acc) on each accumulator in a fixed order.
     template <class F>
     void each(F&& f) {
         f(mse), f(r2), f(medae), f(log_loss), f(brier), f(error), f(table), f(auc), f(binned);
     }
 };
-
-/// Gathers every rank's bytes on rank 0 (sizes first, then MPI_Gatherv), in rank order.
-std::vector<std::vector<std::byte>> gather_bytes(const std::vector<std::byte>& mine, int rank, int ranks) {
-    const auto size = static_cast<unsigned long long>(mine.size());
-    std::vector<unsigned long long> sizes(static_cast<std::size_t>(ranks));
-    MPI_Gather(&size, 1, MPI_UNSIGNED_LONG_LONG, sizes.data(), 1, MPI_UNSIGNED_LONG_LONG, 0, MPI_COMM_WORLD);
-    std::vector<int> counts(static_cast<std::size_t>(ranks)), offsets(static_cast<std::size_t>(ranks));
-    std::size_t total = 0;
-    for (std::size_t r = 0; r < sizes.size(); ++r) {
-        counts[r] = static_cast<int>(sizes[r]); // states here are far below 2 GiB
-        offsets[r] = static_cast<int>(total);
-        total += sizes[r];
-    }
-    std::vector<std::byte> all(rank == 0 ? total : 0);
-    MPI_Gatherv(mine.data(), static_cast<int>(mine.size()), MPI_BYTE, all.data(), counts.data(), offsets.data(),
-                MPI_BYTE, 0, MPI_COMM_WORLD);
-    std::vector<std::vector<std::byte>> out;
-    if (rank == 0)
-        for (std::size_t r = 0; r < sizes.size(); ++r)
-            out.emplace_back(all.begin() + offsets[r],
-                             all.begin() + offsets[r] + static_cast<std::ptrdiff_t>(sizes[r]));
-    return out;
-}
 
 int failures = 0;
 
@@ -156,26 +147,19 @@ int main(int argc, char** argv) {
 
     int status = 0;
     try {
-        // 1. Each rank scores its shard and serialises its accumulators.
+        // 1. Each rank scores its shard.
         accumulators mine;
         mine.add(make_shard(static_cast<std::size_t>(rank), rows, offset));
-        std::vector<std::vector<std::vector<std::byte>>> received; // [accumulator][rank]
-        mine.each([&](const auto& acc) { received.push_back(gather_bytes(heldout::serialize(acc), rank, ranks)); });
+        // 2. Every rank gets the states merged in rank order (heldout::mpi::merge).
+        accumulators merged;
+        std::size_t bytes = 0;
+        mine.each([&](const auto& acc) { bytes += heldout::serialize(acc).size(); });
+        unsigned long long mine_bytes = bytes, all_bytes = 0;
+        MPI_Reduce(&mine_bytes, &all_bytes, 1, MPI_UNSIGNED_LONG_LONG, MPI_SUM, 0, MPI_COMM_WORLD);
+        bytes = static_cast<std::size_t>(all_bytes);
+        mine.merge_into(merged, MPI_COMM_WORLD);
 
         if (rank == 0) {
-            // 2. Rank 0 rebuilds each state from bytes and merges the shards in rank order.
-            accumulators merged;
-            std::size_t k = 0;
-            std::size_t bytes = 0;
-            merged.each([&](auto& acc) {
-                using A = std::remove_cvref_t<decltype(acc)>;
-                acc = heldout::deserialize<A>(received[k][0]);
-                for (std::size_t r = 1; r < received[k].size(); ++r)
-                    acc.merge(heldout::deserialize<A>(received[k][r]));
-                for (const auto& b : received[k])
-                    bytes += b.size();
-                ++k;
-            });
             std::printf("heldout on MPI: %d ranks x %zu rows (regression offset %g), %zu bytes of state gathered\n",
                         ranks, rows, offset, bytes);
 

@@ -121,7 +121,7 @@ if not split_col:
             se = np.std(b, ddof=1) / math.sqrt(n)
             e = est[(name, "Brier score")]
             close(name + " Brier", e["value"], float(np.mean(b)))
-            # scipy's t.ppf is accurate to ~1e-10 relative (see methods.md): a looser band here
+            # scipy's t.ppf is accurate to ~1e-10 relative (checked against R 4.2.2 qt): a looser band here
             clipped_t(e, name + " Brier", float(np.mean(b)), tq * se)
             checked += 3
         else:

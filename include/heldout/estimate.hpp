@@ -17,5 +17,6 @@
 #include <heldout/estimate/estimate.hpp>
 #include <heldout/estimate/evaluate_splits.hpp>
 #include <heldout/estimate/nested_cv.hpp>
+#include <heldout/estimate/predictions_csv.hpp>
 #include <heldout/estimate/t_interval.hpp>
 #include <heldout/estimate/tuning.hpp>

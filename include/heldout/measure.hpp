@@ -9,6 +9,7 @@
 #include <heldout/measure/brier_score.hpp>
 #include <heldout/measure/calibration_error.hpp>
 #include <heldout/measure/cross_entropy.hpp>
+#include <heldout/measure/distance_from_ideal.hpp>
 #include <heldout/measure/mae.hpp>
 #include <heldout/measure/max_absolute_error.hpp>
 #include <heldout/measure/mean_loss.hpp>

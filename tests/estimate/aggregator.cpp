@@ -399,7 +399,7 @@ TEST_SUITE("estimate/aggregator") {
         CHECK(e.cautions[0] == "only 10 positives (10 positive, 10 negative): the DeLong interval may cover less than "
                                "its level below 30 in a class (docs/intervals.md, coverage study)");
         CHECK(e.value == doctest::Approx(0.84).epsilon(1e-14));          // 21/25, DeLong et al. (1988) example data
-        CHECK(*e.se == doctest::Approx(0.0899382504215).epsilon(1e-10)); // methods.md section 3.3 check (R)
+        CHECK(*e.se == doctest::Approx(0.0899382504215).epsilon(1e-10)); // DeLong et al. 1988 (R)
         const auto d = heldout::delong_auc(y, s, 0.95);
         CHECK(*e.lower == d.lower);
         CHECK(*e.upper == d.upper);
@@ -407,7 +407,7 @@ TEST_SUITE("estimate/aggregator") {
     }
 
     TEST_CASE(".632 and .632+ from hand-made bootstrap splits (Efron & Tibshirani 1997 formulas)") {
-        // 10 rows, truth y and apparent predictions q of methods.md section 11: gamma = 0.48,
+        // 10 rows, truth y and apparent predictions q of Efron & Tibshirani 1997, worked by hand: gamma = 0.48,
         // apparent error 0.2. Four bootstrap splits: rows 0-4 out of bag in splits 0 and 2,
         // rows 5-9 in splits 1 and 3. Rows 0-6 are wrong once in two, rows 7-9 never, so
         // Err(1) = 7 * 0.5 / 10 = 0.35.
@@ -435,7 +435,8 @@ TEST_SUITE("estimate/aggregator") {
         agg.record_apparent(y, q);
         const auto p = agg.estimate(measure::classification_error{}); // default on bootstrap plans: .632+
         CHECK(p.method == ci::method_id::bootstrap_632_plus);
-        CHECK(p.value == doctest::Approx(0.318078291815).epsilon(1e-11)); // methods.md section 11 [SELF]
+        CHECK(p.value ==
+              doctest::Approx(0.318078291815).epsilon(1e-11)); // Efron & Tibshirani 1997, worked by hand [SELF]
         CHECK(!p.has_interval());
         const auto d = agg.estimate(measure::classification_error{}, ci::bootstrap_632);
         CHECK(d.value == doctest::Approx(0.2948).epsilon(1e-14)); // 0.368 * 0.2 + 0.632 * 0.35

@@ -17,7 +17,7 @@ using heldout::wilson_interval;
 
 TEST_SUITE("estimate/binomial_interval") {
     TEST_CASE("Wilson 95% for 3/10, arithmetic visible") {
-        // z = 1.959963984540054 (R qnorm, methods.md global conventions); p = 0.3;
+        // z = 1.959963984540054 (R qnorm, R 4.2.2 qnorm/qt, mpmath agrees); p = 0.3;
         // centre = (2*10*0.3 + z^2)/(2(10 + z^2)), half = z/(2(10 + z^2)) sqrt(4*10*0.3*0.7 + z^2).
         const double z = 1.959963984540054;
         const double centre = (6.0 + z * z) / (2 * (10 + z * z));
@@ -27,7 +27,7 @@ TEST_SUITE("estimate/binomial_interval") {
         CHECK(w.upper == doctest::Approx(centre + half).epsilon(1e-14));
         CHECK(w.estimate == 0.3);
         CHECK(w.level == 0.95);
-        // The same interval written as in methods.md section 1 (Wilson 1927).
+        // The same interval written as in Wilson (1927).
         const double p = 0.3, n = 10;
         const double c2 = (p + z * z / (2 * n)) / (1 + z * z / n);
         const double h2 = z * std::sqrt(p * (1 - p) / n + z * z / (4 * n * n)) / (1 + z * z / n);
@@ -46,11 +46,11 @@ TEST_SUITE("estimate/binomial_interval") {
     }
     TEST_CASE("Clopper-Pearson 0/n puts a/2 in the upper tail: U = 1 - (a/2)^(1/n)") {
         // Beta^-1(1 - a/2; 1, n) = 1 - (a/2)^(1/n) in closed form (Clopper & Pearson 1934, beta form
-        // in methods.md section 1): each tail gets a/2 even at k = 0.
+        // in Wilson 1927; Clopper & Pearson 1934): each tail gets a/2 even at k = 0.
         CHECK(clopper_pearson_interval(0, 10).upper == doctest::Approx(1 - std::pow(0.025, 0.1)).epsilon(1e-13));
         CHECK(clopper_pearson_interval(10, 10).lower == doctest::Approx(std::pow(0.025, 0.1)).epsilon(1e-13));
     }
-    TEST_CASE("Agresti-Coull is truncated to [0, 1] at 0/20 and 1/29 (methods.md section 1)") {
+    TEST_CASE("Agresti-Coull is truncated to [0, 1] at 0/20 and 1/29 (Agresti & Coull 1998)") {
         // Untruncated lower bounds are negative there (Agresti & Coull 1998 formula).
         const double z = 1.959963984540054;
         for (auto [k, n] : {std::pair{0, 20}, std::pair{1, 29}}) {
@@ -84,7 +84,7 @@ TEST_SUITE("estimate/binomial_interval") {
             CHECK(heldout_test::close(w.upper, wh[i], 1e-12, 1e-15));
             const auto e = clopper_pearson_interval(kk, nn, lev[i]);
             // scipy method='exact' is a root search (~1e-12 absolute); scipy.stats.beta.ppf is the
-            // beta-quantile form of methods.md section 1 (Clopper & Pearson 1934).
+            // beta-quantile form of Clopper & Pearson (1934).
             CHECK(std::abs(e.lower - el[i]) <= 2e-12);
             CHECK(std::abs(e.upper - eh[i]) <= 2e-12);
             CHECK(heldout_test::close(e.lower, bl[i], 1e-12, 1e-300));

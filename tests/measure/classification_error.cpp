@@ -57,7 +57,7 @@ TEST_SUITE("measure/classification_error") {
     }
 
     TEST_CASE("check value: accuracy 0.85 for TP = 20, FN = 10, FP = 5, TN = 65") {
-        // Binary check of methods.md section 7 (self-written reference of the count formula):
+        // Binary check of worked by hand from the published formula (self-written reference of the count formula):
         // accuracy = (20 + 65) / 100.
         std::vector<int> y, f;
         auto put = [&](int t, int p, int n) {
@@ -204,13 +204,13 @@ TEST_SUITE("measure/classification_error") {
         check_bytes_round_trip(accuracy{}, -1);
         check_bytes_round_trip(classification_error{.classes = 3}, 3); // 3 stays outside the classes
         check_bytes_round_trip(accuracy{.classes = 3}, 3);
-        // the two share a layout but not a tag: bytes of one are refused as the other
+        // the two share a layout but not a key: bytes of one are refused as the other
         auto a = accuracy{}.accumulator();
         a.add_one(1, 1);
         using error_acc = decltype(classification_error{}.accumulator());
         CHECK_THROWS_WITH_AS((void)heldout::deserialize<error_acc>(heldout::serialize(a)),
-                             "heldout::deserialize: argument 'bytes': the state is of accuracy, not of measure "
-                             "classification error",
+                             "heldout::deserialize: argument 'bytes': the bytes hold the state of 'accuracy', not "
+                             "of 'classification_error'",
                              heldout::input_error);
     }
 }

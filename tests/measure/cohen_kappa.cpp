@@ -51,7 +51,7 @@ TEST_SUITE("measure/cohen_kappa") {
 
     TEST_CASE("check values: Cohen 1960 kappa, Cohen 1968 weighted kappa") {
         // Binary TP 20, FN 10, FP 5, TN 65: p_o = 0.85, p_e = (70*75 + 30*25)/1e4 = 0.6, kappa 0.625
-        // (methods.md section 7, self-written reference of the published formula)
+        // (worked by hand from the published formula, self-written reference of the published formula)
         Eigen::MatrixXd b(2, 2);
         b << 65, 5, //
             10, 20;

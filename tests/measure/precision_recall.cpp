@@ -82,7 +82,7 @@ TEST_SUITE("measure/precision_recall") {
     }
 
     TEST_CASE("binary check values: van Rijsbergen 1979 F-beta (count form) on TP 20, FN 10, FP 5, TN 65") {
-        // Values: self-written reference of the published formulas (methods.md section 7).
+        // Values: self-written reference of the published formulas (worked by hand from the published formula).
         const Eigen::MatrixXd b = binary_check_table();
         CHECK(precision{}.from_table(b) == doctest::Approx(0.8).epsilon(1e-15));                 // 20 / 25
         CHECK(recall{}.from_table(b) == doctest::Approx(0.666666666666667).epsilon(1e-14));      // 20 / 30
@@ -100,7 +100,7 @@ TEST_SUITE("measure/precision_recall") {
 
     TEST_CASE("multiclass check values: macro-F1 0.734916734917, micro-F1 = accuracy 0.74") {
         // [[10,2,3],[4,12,2],[1,1,15]]: per-class F1 20/30, 24/33, 30/37 (self-written reference of
-        // van Rijsbergen's formula, methods.md section 7)
+        // van Rijsbergen's formula, worked by hand from the published formula)
         const Eigen::MatrixXd m = multiclass_check_table();
         CHECK(f_beta{1.0, class_combination::mean}.from_table(m) == doctest::Approx(0.734916734916735).epsilon(1e-13));
         CHECK(f_beta{1.0, class_combination::pooled}.from_table(m) == doctest::Approx(0.74).epsilon(1e-15));
@@ -290,8 +290,7 @@ TEST_SUITE("measure/precision_recall") {
         const auto bytes = heldout::serialize(p);
         CHECK_THROWS_WITH_AS(
             (void)heldout::deserialize<heldout::measure::table_accumulator<recall>>(bytes),
-            "heldout::deserialize: argument 'bytes': the state is of measure precision with 2 fixed classes, not of "
-            "measure recall",
+            "heldout::deserialize: argument 'bytes': the bytes hold the state of 'precision', not of 'recall'",
             heldout::input_error);
         // a default accumulator is that of the default measure
         heldout::measure::table_accumulator<precision> d;

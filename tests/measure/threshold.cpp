@@ -10,7 +10,7 @@
 #include <vector>
 
 TEST_SUITE("measure/threshold") {
-    TEST_CASE("worked example: methods.md §4 Check A data") {
+    TEST_CASE("worked example: Davis & Goadrich 2006, worked by hand Check A data") {
         const std::vector<int> y{1, 0, 1, 1, 0, 0, 1, 0};
         const std::vector<double> s{0.9, 0.8, 0.7, 0.6, 0.55, 0.5, 0.4, 0.3};
         // Thresholds +inf,.9,.8,.7,.6,.55,.5,.4,.3: TPR 0,1/4,1/4,2/4,3/4,3/4,3/4,1,1; FPR

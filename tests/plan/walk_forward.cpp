@@ -40,8 +40,8 @@ static_assert(!takes_negative_gap_constant<heldout::walk_forward>);
 } // namespace
 
 TEST_SUITE("plan/walk_forward") {
-    TEST_CASE("methods.md Section 16 worked case: T = 10, o_1 = 4, H = 2, s = 2, expanding") {
-        // Tashman (2000), rolling origin; check values [SELF] from methods.md Section 16:
+    TEST_CASE("Tashman 2000 rolling origin, worked by hand: T = 10, o_1 = 4, H = 2, s = 2, expanding") {
+        // Tashman (2000), rolling origin; check values worked by hand from the definition in the paper:
         // train [0,4) / test [4,6), train [0,6) / test [6,8), train [0,8) / test [8,10).
         auto r = heldout::walk_forward{.initial = 4, .horizon = 2, .step = 2}.splits(10);
         REQUIRE(r.size() == 3); // floor((10 - 4 - 0 - 2) / 2) + 1

@@ -5,7 +5,7 @@ gets through the aggregator's dispatch, computed here directly from the recorded
 Sources, by entry prefix:
   one.*     one test set, squared errors: scipy.stats.t.interval(level, n - 1, loc=mean,
             scale=sem) on the per-row losses (numpy.var ddof=1). scipy 1.10.1 t.ppf is off by
-            up to ~1e-9 relative (methods.md, global conventions): compare at 1e-8.
+            up to ~1e-9 relative (checked against R 4.2.2 qt): compare at 1e-8.
   bin.*     one test set, 0/1 errors: scipy.stats.binomtest(k, n).proportion_ci(level,
             method='wilson' | 'exact'); Agresti-Coull (Agresti & Coull 1998) as the formula
             with scipy.stats.norm.ppf.

@@ -1,6 +1,6 @@
 #!/usr/bin/python3
 """Reference values for measure::average_precision and measure::auprc, and for pr_points: a
-scripted numpy implementation of the grouped definitions of methods.md §4 (rows sorted by
+scripted numpy implementation of the grouped definitions of Davis & Goadrich 2006, worked by hand (rows sorted by
 numpy.argsort, ties grouped with numpy.unique, cumulative sums with numpy.cumsum), on seeded
 random data with heavy ties; weighted cases replicate rows by integer weights (numpy.repeat)."""
 import numpy as np

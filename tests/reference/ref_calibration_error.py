@@ -42,7 +42,7 @@ for case in range(5):
     n = int(rng.integers(20, 800))
     y = rng.integers(0, 2, size=n)
     p = rng.random(size=n).round(2)  # ties, exact edges m/M, exact 0 and 1
-    p[:4] = [0.0, 1.0, 0.07, 0.55]  # the edge cases of methods.md section 6
+    p[:4] = [0.0, 1.0, 0.07, 0.55]  # the edge cases of Naeini et al. 2015; Guo et al. 2017, worked by hand
     w = rng.integers(0, 4, size=n).astype(float)
     w[0] = 1.0
     t.put(f"case{case}.truth", y)

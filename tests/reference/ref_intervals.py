@@ -10,7 +10,7 @@ Sources, by entry prefix:
             is written too, as beta_lo/beta_hi); agresti_coull is the
             Agresti & Coull (1998) formula evaluated in numpy with scipy.stats.norm.ppf.
   tq.*      scipy.stats.t.ppf / t.sf / norm.ppf. scipy 1.10.1 t.ppf is off by up to ~1e-9
-            relative (methods.md, global conventions), so each t quantile is also refined by two
+            relative (checked against R 4.2.2 qt), so each t quantile is also refined by two
             Newton steps on scipy.stats.t.cdf / t.pdf (tppf() below); the C++ side compares the
             refined value at 1e-12 and the raw t.ppf at 1e-8.
   tint.*    scipy.stats.t.interval / norm.interval on seeded random losses (np.var ddof=1).

@@ -1,14 +1,18 @@
 // Tests for heldout/report/plots.hpp: reliability bins, the four plots, CD groups.
 // Well-formedness is checked by the small XML parser in tests/report/xml_check.hpp.
+#include <heldout/measure/average_precision.hpp>
+#include <heldout/measure/roc_points.hpp>
 #include <heldout/report/plots.hpp>
 
 #include "report/xml_check.hpp"
 
 #include <doctest/doctest.h>
 
+#include <array>
 #include <cstdint>
 #include <limits>
 #include <random>
+#include <regex>
 #include <string>
 #include <vector>
 
@@ -148,19 +152,88 @@ TEST_SUITE("report/plots") {
         CHECK_THROWS_AS(roc_plot(std::vector<roc_series>{}), heldout::input_error);
     }
 
-    TEST_CASE("calibration plot: one marked line per model, bars of bin shares, diagonal") {
+    TEST_CASE("reliability bins: Wilson intervals of the observed rates") {
         const std::vector<int> y{1, 0, 1, 1, 0, 0, 1, 0, 1, 0};
         const std::vector<double> p{0.92, 0.18, 0.75, 0.62, 0.52, 0.08, 0.42, 0.03, 0.99, 0.71};
-        const std::vector<calibration_series> models{{"A", reliability_bins(y, p, 5)},
-                                                     {"B", reliability_bins(y, p, 10)}};
+        const auto b = reliability_bins(y, p, 5, 0.9);
+        REQUIRE(b.size() == 4);
+        for (const auto& bin : b) {
+            const auto w = heldout::wilson_interval(bin.positives, bin.count, 0.9);
+            CHECK(bin.rate_lower == w.lower);
+            CHECK(bin.rate_upper == w.upper);
+            CHECK(bin.rate_lower <= bin.observed_rate);
+            CHECK(bin.observed_rate <= bin.rate_upper);
+        }
+        // (.6, .8]: 2 of 3 positive. Wilson (1927) at z = 1.6449 (z^2 = 2.7055): centre
+        // (2 + z^2/2)/(3 + z^2) = 3.3528/5.7055 = 0.5876, half-width z sqrt(2*1/3 + z^2/4)/(3 + z^2)
+        // = 1.6449 * 1.1589/5.7055 = 0.3341 -> [0.2535, 0.9217] (by hand).
+        CHECK(b[2].positives == 2);
+        CHECK(b[2].rate_lower == doctest::Approx(0.2535).epsilon(4e-4));
+        CHECK(b[2].rate_upper == doctest::Approx(0.9217).epsilon(4e-4));
+        CHECK_THROWS_AS(reliability_bins(y, p, 5, 1.0), heldout::input_error);
+    }
+
+    TEST_CASE("calibration plot: reliability panel with intervals above a count histogram") {
+        const std::vector<int> y{1, 0, 1, 1, 0, 0, 1, 0, 1, 0};
+        const std::vector<double> p{0.92, 0.18, 0.75, 0.62, 0.52, 0.08, 0.42, 0.03, 0.99, 0.71};
+        const auto b5 = reliability_bins(y, p, 5);
+        const auto b10 = reliability_bins(y, p, 10);
+        const std::vector<calibration_series> models{{"A", b5}, {"B", b10}};
         const std::string s = calibration_plot(models);
         REQUIRE(xml_problem(s).empty());
-        // polylines: diagonal, 4 + 7 share bars, two model lines
-        const auto b10 = reliability_bins(y, p, 10).size();
-        CHECK(count_of(s, "<polyline") == 1 + 4 + b10 + 2);
-        CHECK(count_of(s, "<circle") == 4 + b10 + 2); // markers + legend markers
+        CHECK(count_of(s, "<svg") == 3); // the document and its two panels
+        // polylines: diagonal and the two model lines; circles: markers + legend markers
+        CHECK(count_of(s, "<polyline") == 1 + 2);
+        CHECK(count_of(s, "<circle") == b5.size() + b10.size() + 2);
+        // the bins and whiskers are heldout::reliability's
+        const auto r = heldout::reliability(y, p, 10);
+        REQUIRE(r.size() == b10.size());
+        CHECK(b10[2].rate_lower == r[2].lower);
+        CHECK(b10[2].rate_upper == r[2].upper);
         CHECK(s.find(">observed frequency of the event<") != std::string::npos);
+        CHECK(s.find(">predictions<") != std::string::npos);
+        // one histogram bar per bin and model, its height proportional to the bin's count
+        // and inside the bin's edges (the bars were once scaled by a guessed plot width)
+        const std::regex bar("<rect x=\"([0-9.]+)\" y=\"([0-9.]+)\" width=\"([0-9.]+)\" height=\"([0-9.]+)\" "
+                             "stroke=\"none\" fill=\"(#[0-9A-F]+)\" opacity=\"0.80\"/>");
+        std::vector<std::array<double, 4>> bars_a, bars_b;
+        for (auto it = std::sregex_iterator(s.begin(), s.end(), bar); it != std::sregex_iterator(); ++it) {
+            const std::array<double, 4> r{std::stod((*it)[1]), std::stod((*it)[2]), std::stod((*it)[3]),
+                                          std::stod((*it)[4])};
+            ((*it)[5] == palette(0) ? bars_a : bars_b).push_back(r);
+        }
+        REQUIRE(bars_a.size() == b5.size());
+        REQUIRE(bars_b.size() == b10.size());
+        const double unit = bars_a[0][3] / static_cast<double>(b5[0].count); // pixels per prediction
+        for (std::size_t i = 0; i < b5.size(); ++i)
+            CHECK(bars_a[i][3] == doctest::Approx(unit * static_cast<double>(b5[i].count)).epsilon(0.01));
+        for (std::size_t i = 0; i < b10.size(); ++i)
+            CHECK(bars_b[i][3] == doctest::Approx(unit * static_cast<double>(b10[i].count)).epsilon(0.01));
+        // widths: 0.8 of a bin shared by 2 models; bins of 0.2 and 0.1 -> widths in ratio 2:1
+        CHECK(bars_a[0][2] == doctest::Approx(2 * bars_b[0][2]).epsilon(0.01));
+        for (std::size_t i = 1; i < b5.size(); ++i) // bars of model A do not overlap
+            CHECK(bars_a[i][0] >= bars_a[i - 1][0] + bars_a[i - 1][2]);
         CHECK_THROWS_AS(calibration_plot(std::vector<calibration_series>{{"empty", {}}}), heldout::input_error);
+    }
+
+    TEST_CASE("precision-recall plot: steps whose area is the average precision") {
+        const std::vector<int> y{1, 0, 1, 1, 0, 0, 1, 0, 1, 0};
+        const std::vector<double> p{0.92, 0.18, 0.75, 0.62, 0.52, 0.08, 0.42, 0.03, 0.99, 0.71};
+        const auto s = pr_series_of("model <A>", heldout::pr_points(y, p));
+        // Area under the drawn steps = sum (r_i - r_{i-1}) p_i, the average precision.
+        double area = 0, last = 0;
+        for (std::size_t i = 0; i < s.recall.size(); ++i) {
+            area += (s.recall[i] - last) * s.precision[i];
+            last = s.recall[i];
+        }
+        CHECK(area == doctest::Approx(heldout::evaluate(heldout::measure::average_precision{}, y, p)).epsilon(1e-12));
+        const std::vector<pr_series> curves{s};
+        const std::string svg = pr_plot(curves, 0.5);
+        REQUIRE(xml_problem(svg).empty());
+        CHECK(count_of(svg, "<polyline") == 2); // the prevalence line and the curve
+        CHECK(svg.find("model &lt;A&gt;") != std::string::npos);
+        const std::vector<pr_series> bad{{"x", {0.5, 0.2}, {1, 1}}};
+        CHECK_THROWS_AS(pr_plot(bad), heldout::input_error);
     }
 
     TEST_CASE("strip plot: jittered points per group, a mean bar each, paired lines, reproducible") {
@@ -178,6 +251,19 @@ TEST_SUITE("report/plots") {
                              "heldout::report::strip_plot: argument 'groups[1]': paired groups must hold the same "
                              "number of values",
                              heldout::input_error);
+        // 100 splits: no paired lines (they would tangle), quartile boxes, translucent points
+        strip_group many_a{"a", {}}, many_b{"b", {}};
+        for (int i = 0; i < 100; ++i) {
+            many_a.values.push_back(0.1 + 0.001 * i);
+            many_b.values.push_back(0.12 + 0.0005 * i);
+        }
+        const std::vector<strip_group> many{many_a, many_b};
+        const std::string m = strip_plot(many, {.paired = true, .reference = 0.0});
+        REQUIRE(xml_problem(m).empty());
+        CHECK(count_of(m, "<circle") == 200);
+        CHECK(count_of(m, "<polyline") == 1 + 2);    // the reference line and two mean bars
+        CHECK(count_of(m, "opacity=\"0.18\"") == 2); // two quartile boxes
+        CHECK(count_of(m, "opacity=\"0.55\"") == 200);
         const std::vector<strip_group> nan{{"a", {1, std::numeric_limits<double>::quiet_NaN()}}};
         CHECK_THROWS_WITH_AS(strip_plot(nan),
                              "heldout::report::strip_plot: argument 'groups[0].values': not finite (nan) at index 1",

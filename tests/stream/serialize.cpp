@@ -176,16 +176,22 @@ TEST_SUITE("stream/serialize") {
         auto acc = heldout::measure::mse{}.accumulator();
         acc.add_one(1.0, 0.0);
         const auto bytes = heldout::serialize(acc);
-        REQUIRE(bytes.size() == 4 + 2 + 2 + 4 + 6 + 6 * 8 + 8);
+        // Version 2: the key "mean_loss<...>" of MSE (its measure's `key`) after the version.
+        const std::string_view key = heldout::measure::mse::key;
+        const std::size_t k = key.size();
+        REQUIRE(bytes.size() == 4 + 2 + 2 + 4 + k + 4 + 6 + 6 * 8 + 8);
         CHECK(std::memcmp(bytes.data(), "HDST", 4) == 0);
-        CHECK(bytes[4] == std::byte{1});
-        CHECK(bytes[8] == std::byte{6}); // schema length 6: "ddddiu"
-        CHECK(std::memcmp(bytes.data() + 12, "ddddiu", 6) == 0);
+        CHECK(bytes[4] == std::byte{2});
+        CHECK(bytes[8] == std::byte(k));
+        CHECK(std::memcmp(bytes.data() + 12, key.data(), k) == 0);
+        CHECK(bytes[12 + k] == std::byte{6}); // schema length 6: "ddddiu"
+        CHECK(std::memcmp(bytes.data() + 16 + k, "ddddiu", 6) == 0);
         // first field: 1.0 as binary64 little-endian = 00 00 00 00 00 00 F0 3F (IEEE 754)
-        CHECK(bytes[18 + 6] == std::byte{0xF0});
-        CHECK(bytes[18 + 7] == std::byte{0x3F});
-        CHECK(bytes[18 + 32] == std::byte{0}); // unit = 0
-        CHECK(bytes[18 + 40] == std::byte{1}); // count = 1, low byte first
+        const std::size_t at = 22 + k;
+        CHECK(bytes[at + 6] == std::byte{0xF0});
+        CHECK(bytes[at + 7] == std::byte{0x3F});
+        CHECK(bytes[at + 32] == std::byte{0}); // unit = 0
+        CHECK(bytes[at + 40] == std::byte{1}); // count = 1, low byte first
     }
     TEST_CASE("every supported field kind round-trips") {
         every_field e;

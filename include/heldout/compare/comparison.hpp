@@ -4,16 +4,22 @@
 //   // two aggregators filled on the same splits (same plan, same seed, same rows)
 //   heldout::comparison c = heldout::compare(agg_a, agg_b, heldout::measure::mse{});
 //   std::cout << c << '\n';
-//   // MSE A - B = 0.0123 [-0.0021, 0.0267] 95%, corrected t (Bouckaert-Frank) 1.71, df 99, p = 0.0903; 100 splits,
-//   n=5000 auto f = heldout::compare(agg_a, agg_b, mse, heldout::paired::five_by_two_f);    // 5x2cv plan auto m =
-//   heldout::compare(error, truth, labels_a, labels_b, heldout::paired::mcnemar_exact); auto d =
-//   heldout::compare(heldout::measure::auc{}, truth, scores_a, scores_b);  // DeLong auto b = heldout::compare(m,
-//   truth, f_a, f_b, heldout::paired::bootstrap_bca(5000, 7)); auto all = heldout::compare_all_pairs(models, mse,
-//   heldout::paired::automatic, 0.95, {"ridge", "tree", "knn"}); heldout::write_csv(std::cout, all);   // Holm-adjusted
-//   p-values in adjusted_p_value
+//   // MSE A - B = 0.0123 [-0.0021, 0.0267] 95%, corrected t (Bouckaert-Frank) 1.71, df 99,
+//   //   p = 0.0903; 100 splits, n=5000
+//   auto f = heldout::compare(agg_a, agg_b, mse, heldout::paired::five_by_two_f);   // 5x2cv plan
+//   auto m = heldout::compare(error, truth, labels_a, labels_b, heldout::paired::mcnemar_exact);
+//   auto d = heldout::compare(heldout::measure::auc{}, truth, scores_a, scores_b);   // DeLong
+//   auto b = heldout::compare(m, truth, f_a, f_b, heldout::paired::bootstrap_bca(5000, 7));
+//   auto all = heldout::compare_all_pairs(models, mse);   // names from aggregator::set_model
+//   // (or pass them: compare_all_pairs(models, mse, paired::automatic, 0.95, {"ridge", "tree", "knn"}))
+//   heldout::write_csv(std::cout, all);   // Holm-adjusted p-values in adjusted_p_value
 //
 // `difference` is always measure(A) - measure(B): with an error (lower is better) a positive
-// difference favours B. Methods, by their published names (heldout::paired):
+// difference favours B. A measure with an ideal value (direction::toward_ideal: the
+// calibration slope, ideal 1) is compared by its distance from the ideal instead:
+// difference = |A - ideal| - |B - ideal| (measure::distance_from_ideal, computed from the
+// kept predictions), so a positive difference again favours B; the notes give both values. Methods, by their published
+// names (heldout::paired):
 //   corrected_t          several splits without replacement: corrected resampled t on the
 //                        per-split differences, variance factor 1/J + n_test/n_train (Nadeau &
 //                        Bengio 2003 for subsampling; Bouckaert & Frank 2004 for r x k-fold, where
@@ -54,6 +60,7 @@
 #include <heldout/estimate/corrected_t.hpp>
 #include <heldout/estimate/delong.hpp>
 #include <heldout/estimate/estimate.hpp>
+#include <heldout/measure/distance_from_ideal.hpp>
 #include <heldout/measure/mean_loss.hpp>
 
 #include <algorithm>
@@ -281,7 +288,7 @@ inline void bootstrap_fill(comparison& c, paired::method_id id, double theta, bo
     std::string note = std::to_string(set.values.size()) + " paired replicates, seed " + std::to_string(seed) +
                        "; statistic = difference / se; p-value from the replicates (Davison & Hinkley 1997)";
     if (id == paired::method_id::bootstrap_bca)
-        note += "; z0 " + number_text(r.z0) + ", acceleration " + number_text(r.acceleration);
+        note += "; z0 " + note_number(r.z0) + ", acceleration " + note_number(r.acceleration);
     c.notes.push_back(note);
     if (set.undefined > 0)
         c.notes.push_back(std::to_string(set.undefined) + " of " + std::to_string(replicates) +
@@ -369,7 +376,7 @@ inline void split_methods(comparison& c, paired::method_id id, std::span<const s
             c.df = 5.0;
             c.p_value = r.t_p_value;
             c.notes.push_back("difference is the mean of the 10 fold differences; t uses the first, " +
-                              number_text(r.first_difference) +
+                              note_number(r.first_difference) +
                               ", and the interval (which inverts the t test) is centred on it");
         } else {
             c.statistic = r.f_statistic;
@@ -393,8 +400,8 @@ inline void split_methods(comparison& c, paired::method_id id, std::span<const s
         c.method_label += kfold ? " (Bouckaert-Frank)" : " (Nadeau-Bengio)";
         c.notes.push_back(std::string(kfold ? "repeated k-fold form (Bouckaert & Frank 2004)"
                                             : "subsampling form (Nadeau & Bengio 2003)") +
-                          ": variance factor 1/J + n_test/n_train with n_train " + number_text(n_train) + ", n_test " +
-                          number_text(n_test) + " (mean recorded sizes)");
+                          ": variance factor 1/J + n_test/n_train with n_train " + note_number(n_train) + ", n_test " +
+                          note_number(n_test) + " (mean recorded sizes)");
     } else {
         r = naive_resampled_t(d, level);
         c.notes.push_back("the naive paired t treats overlapping splits as independent and is known to reject "
@@ -410,6 +417,10 @@ inline void split_methods(comparison& c, paired::method_id id, std::span<const s
     c.p_value = r.p_value;
 }
 
+template <class M>
+comparison compare_by_distance(const aggregator& agg_a, const aggregator& agg_b, const M& m, paired::method method,
+                               double level);
+
 } // namespace detail::cmp
 
 /// Compares models A and B evaluated on the same splits (see the header comment).
@@ -419,6 +430,8 @@ comparison compare(const aggregator& agg_a, const aggregator& agg_b, const M& m,
     using namespace detail::cmp;
     using detail::aggregator_access;
     static_assert(check_measure<M>());
+    if constexpr (has_ideal_v<M>)
+        return compare_by_distance(agg_a, agg_b, m, method, level);
     detail::check_level(who, level);
     check_same_splits(agg_a, agg_b);
     const auto& ta = aggregator_access::track(agg_a, m, who);
@@ -428,6 +441,10 @@ comparison compare(const aggregator& agg_a, const aggregator& agg_b, const M& m,
     comparison c;
     c.measure = ta.name;
     c.level = level;
+    if (!agg_a.model().empty()) // named models (aggregator::set_model) name A and B
+        c.model_a = agg_a.model();
+    if (!agg_b.model().empty())
+        c.model_b = agg_b.model();
     record_shape rs = agg_a.method_shape();
     rs.kept_predictions = agg_a.keeps_predictions() && agg_b.keeps_predictions();
     measure_facts f = detail::facts_of(ta);
@@ -538,10 +555,42 @@ comparison compare(const M& m, const T& truth, const P& prediction_a, const P& p
 
 namespace detail::cmp {
 
-inline std::vector<std::string> model_names(std::size_t k, std::vector<std::string> names) {
+/// A measure with an ideal value: the comparison of |A - ideal| and |B - ideal|, tracked on
+/// copies of the aggregators from their kept predictions.
+template <class M>
+comparison compare_by_distance(const aggregator& agg_a, const aggregator& agg_b, const M& m, paired::method method,
+                               double level) {
+    const measure::distance_from_ideal<M> d{m};
+    for (const aggregator* g : {&agg_a, &agg_b})
+        if (!g->keeps_predictions())
+            fail(who, g == &agg_a ? "agg_a" : "agg_b",
+                 "measure " + m.name() + " has an ideal value (" + number_text(ideal_value_v<M>) +
+                     ") and is compared by the distance from it, computed from the kept predictions; this "
+                     "aggregator did not keep them");
+    aggregator a = agg_a, b = agg_b;
+    if (!a.tracks(d))
+        a.add_measure(d);
+    if (!b.tracks(d))
+        b.add_measure(d);
+    comparison c = compare(a, b, d, method, level);
+    std::string values;
+    const auto va = agg_a.split_values(m), vb = agg_b.split_values(m);
+    if (va.size() == 1 && va[0].value && vb[0].value)
+        values = ": A " + number_text(*va[0].value) + ", B " + number_text(*vb[0].value);
+    c.notes.insert(c.notes.begin(), "measure " + m.name() + " has the ideal value " + number_text(ideal_value_v<M>) +
+                                        "; difference = |A - ideal| - |B - ideal|, positive favours B" + values);
+    return c;
+}
+
+/// The names of k models: those given; else the aggregators' own (aggregator::set_model)
+/// when every one is named; else "model 1", "model 2", ...
+inline std::vector<std::string> model_names(std::span<const aggregator> models, std::vector<std::string> names) {
+    const std::size_t k = models.size();
+    const bool all_named =
+        std::all_of(models.begin(), models.end(), [](const aggregator& a) { return !a.model().empty(); });
     if (names.empty())
         for (std::size_t j = 0; j < k; ++j)
-            names.push_back("model " + std::to_string(j + 1));
+            names.push_back(all_named ? models[j].model() : "model " + std::to_string(j + 1));
     if (names.size() != k)
         fail(who, "names", std::to_string(names.size()) + " names for " + std::to_string(k) + " models");
     return names;
@@ -567,7 +616,7 @@ std::vector<comparison> compare_all_pairs(std::span<const aggregator> models, co
                                           std::vector<std::string> names = {}) {
     if (models.size() < 2)
         detail::fail(detail::cmp::who, "models", "need at least 2 models, got " + std::to_string(models.size()));
-    names = detail::cmp::model_names(models.size(), std::move(names));
+    names = detail::cmp::model_names(models, std::move(names));
     std::vector<comparison> out;
     for (std::size_t i = 0; i < models.size(); ++i)
         for (std::size_t j = i + 1; j < models.size(); ++j) {
@@ -590,7 +639,7 @@ std::vector<comparison> compare_to_reference(std::span<const aggregator> models,
         detail::fail(detail::cmp::who, "reference",
                      "index " + std::to_string(reference) + " outside the " + std::to_string(models.size()) +
                          " models");
-    names = detail::cmp::model_names(models.size(), std::move(names));
+    names = detail::cmp::model_names(models, std::move(names));
     std::vector<comparison> out;
     for (std::size_t i = 0; i < models.size(); ++i) {
         if (i == reference)

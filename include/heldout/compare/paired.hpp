@@ -47,6 +47,10 @@ inline constexpr method mcnemar_corrected{method_id::mcnemar_corrected};
 inline constexpr method delong{method_id::delong};
 inline constexpr method bootstrap_percentile{method_id::bootstrap_percentile};
 inline constexpr method bootstrap_bca{method_id::bootstrap_bca};
+/// Per-query values of two rankers (heldout::compare_queries): paired t over queries, and the
+/// paired randomization (sign-flip) test.
+inline constexpr method query_t{method_id::query_t};
+inline constexpr method randomization{method_id::randomization};
 
 } // namespace paired
 HELDOUT_NAMESPACE_END

@@ -21,6 +21,11 @@
 //                         AUC); the measure has `heldout::case_components
 //                         case_components(truth, prediction) const` (DeLong's structural
 //                         components). Gives ci::delong and paired::delong.
+//   cap::fitted_se        the value is a maximum-likelihood estimate of a model fitted to the
+//                         test rows (the calibration slope and intercept); the measure has
+//                         `heldout::fitted_value fitted(truth, prediction) const` giving the
+//                         value and its standard error from the inverse information. Gives
+//                         ci::wald on one test set.
 //   cap::whole_set        the accumulator has `double score_set(truth, prediction) const` and a
 //                         weighted form: evaluate() scores a whole set in place, without
 //                         copying it into the state first (same value and errors as add +
@@ -31,12 +36,17 @@
 //                         re-adding weighted rows.
 //   cap::serialisable     the measure has `static constexpr std::string_view key` (its
 //                         identity in bytes, stable across versions and machines) and its
-//                         accumulator has `measure()` and visit_state (const and non-const),
-//                         checking what it reads: serialize / deserialize(bytes, m).
+//                         accumulator has `measure()`, visit_state (const and non-const) and
+//                         `void check_state() const`, which deserialize calls once every field
+//                         is read: each invariant of the loaded fields (labels < classes, row
+//                         lengths, weights as long as values, non-negative counts, finite
+//                         sums, parameters in range) or an input_error naming the field
+//                         (detail::fail_loaded). serialize / deserialize(bytes, m).
 #pragma once
 
 #include <heldout/core/config.hpp>
 
+#include <cstddef>
 #include <type_traits>
 #include <vector>
 
@@ -52,16 +62,26 @@ struct case_components {
     std::vector<double> controls;
 };
 
+/// A maximum-likelihood value with its standard error from the inverse (observed = expected,
+/// for the canonical-link models used here) Fisher information.
+struct fitted_value {
+    double value = 0;
+    double se = 0;
+    std::size_t iterations = 0; ///< Newton steps the fit took
+};
+
 namespace cap {
 /// The value is the (weighted) mean of per-row values: `row_losses(truth, prediction, out)`.
 struct row_losses {};
 /// DeLong structural components: `case_components(truth, prediction)`.
 struct case_components {};
+/// A fitted value with its standard error: `fitted(truth, prediction)`.
+struct fitted_se {};
 /// In-place scoring of a whole set: the accumulator's `score_set(truth, prediction[, weights])`.
 struct whole_set {};
 /// Its own bootstrap engine: `resampler(truth, prediction, who)`.
 struct resampling {};
-/// Bytes that cross machines: `key`, the accumulator's `measure()` and `visit_state`.
+/// Bytes that cross machines: `key`, the accumulator's `measure()`, `visit_state` and `check_state()`.
 struct serialisable {};
 } // namespace cap
 

@@ -173,6 +173,12 @@ namespace detail {
         error_details{error_code::state_mismatch, std::string(who), std::string(arg), std::string(problem), {}});
 }
 
+/// A loaded state (stream/serialize.hpp) whose field `field` breaks an invariant: the
+/// accumulators' check_state() reports through this, so the error names deserialize.
+[[noreturn]] inline void fail_loaded(std::string_view field, std::string_view problem) {
+    fail("heldout::deserialize", field, problem);
+}
+
 [[noreturn]] inline void fail_io(std::string_view who, std::string_view arg, std::string_view problem) {
     throw io_error(error_details{error_code::io, std::string(who), std::string(arg), std::string(problem), {}});
 }

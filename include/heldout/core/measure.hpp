@@ -12,7 +12,8 @@
 //
 // A measure is a small copyable struct that declares (core/traits.hpp, core/kinds.hpp,
 // core/capabilities.hpp):
-//   static constexpr heldout::direction better;         lower_is_better or higher_is_better
+//   static constexpr heldout::direction better;         lower_is_better, higher_is_better or
+//                                                       toward_ideal (with `static constexpr double ideal`)
 //   static constexpr heldout::prediction_kind kind;     or `using prediction = heldout::kinds::...;`
 //   using truth = heldout::kinds::...;                  optional (the classic one for its prediction)
 //   using capabilities = heldout::offers<...>;          optional (none)
@@ -115,6 +116,10 @@ concept has_row_losses = requires(const M& m, const sample_truth_t<M>& t, const 
     m.row_losses(t, p, out);
 };
 template <class M>
+concept has_fitted = requires(const M& m, const sample_truth_t<M>& t, const sample_prediction_t<M>& p) {
+    { m.fitted(t, p) } -> std::same_as<heldout::fitted_value>;
+};
+template <class M>
 concept has_case_components = requires(const M& m, const sample_truth_t<M>& t, const sample_prediction_t<M>& p) {
     { m.case_components(t, p) } -> std::same_as<heldout::case_components>;
 };
@@ -140,6 +145,7 @@ concept has_serialisable_parts = requires(const accumulator_t<M>& ca, accumulato
     { ca.measure() } -> std::convertible_to<M>;
     ca.visit_state(null_visitor{});
     a.visit_state(null_visitor{});
+    ca.check_state();
 };
 
 } // namespace detail
@@ -155,6 +161,14 @@ constexpr bool check_measure() {
             { M::better } -> std::convertible_to<direction>;
         },
         "heldout: a measure declares `static constexpr heldout::direction better`");
+    if constexpr (requires {
+                      { M::better } -> std::convertible_to<direction>;
+                  }) {
+        static_assert(
+            (M::better == direction::toward_ideal) == has_ideal_v<M>,
+            "heldout: a measure with `better = heldout::direction::toward_ideal` declares its ideal value, "
+            "`static constexpr double ideal = ...;`, and a measure declaring `ideal` has better = toward_ideal");
+    }
     static_assert(data_kind<prediction_kind_t<M>>,
                   "heldout: a measure declares its prediction kind: `static constexpr heldout::prediction_kind kind` "
                   "or `using prediction = heldout::kinds::...;`");
@@ -186,6 +200,12 @@ constexpr bool check_measure() {
     else
         static_assert(!detail::has_case_components<M>, "heldout: the measure has case_components(...) but does not "
                                                        "declare heldout::cap::case_components");
+    if constexpr (offers_v<M, cap::fitted_se>)
+        static_assert(detail::has_fitted<M>, "heldout: the measure declares cap::fitted_se but has no "
+                                             "`heldout::fitted_value fitted(truth, prediction) const`");
+    else
+        static_assert(!detail::has_fitted<M>,
+                      "heldout: the measure has fitted(...) but does not declare heldout::cap::fitted_se");
     if constexpr (offers_v<M, cap::whole_set>)
         static_assert(detail::has_score_set<M>, "heldout: the measure declares cap::whole_set but its accumulator has "
                                                 "no `double score_set(truth, prediction[, weights]) const`");
@@ -202,7 +222,8 @@ constexpr bool check_measure() {
     if constexpr (offers_v<M, cap::serialisable>)
         static_assert(detail::has_serialisable_parts<M>,
                       "heldout: the measure declares cap::serialisable: it needs `static constexpr std::string_view "
-                      "key`, and its accumulator `measure()` and visit_state(f) (const and non-const)");
+                      "key`, and its accumulator `measure()`, visit_state(f) (const and non-const) and `void "
+                      "check_state() const` (every invariant of a loaded state: input_error naming the field)");
     return true;
 }
 

@@ -13,6 +13,14 @@
 // a measure with data members says how they compare with `bool operator==(const M&) const`
 // (usually `= default`), or it does not compile as a measure. Printed names are for people
 // only; nothing is ever matched by name().
+//
+// Direction. Most measures improve one way (`direction::lower_is_better` or
+// `higher_is_better`). Some have an ideal value instead (a calibration slope is best at 1,
+// a calibration intercept at 0): such a measure declares
+//     static constexpr heldout::direction better = heldout::direction::toward_ideal;
+//     static constexpr double ideal = 1.0;
+// (both or neither; check_measure refuses one without the other), and everything that
+// ranks values (comparisons, tuning, early stopping) ranks them by |value - ideal|.
 #pragma once
 
 #include <heldout/core/capabilities.hpp>
@@ -29,12 +37,31 @@
 HELDOUT_NAMESPACE_BEGIN
 
 /// Which way a measure improves.
-enum class direction { lower_is_better, higher_is_better };
+enum class direction {
+    lower_is_better,
+    higher_is_better,
+    toward_ideal ///< the closer to the measure's declared `ideal` value, the better
+};
 
-/// True when value a is better than value b under direction d.
-constexpr bool better(direction d, double a, double b) noexcept {
-    return d == direction::lower_is_better ? a < b : a > b;
+/// How far value v is from the ideal value: |v - ideal|.
+constexpr double distance_from_ideal(double v, double ideal) noexcept { return v < ideal ? ideal - v : v - ideal; }
+
+/// True when value a is better than value b under direction d (toward_ideal: closer to
+/// `ideal`, which the measure declares; see ideal_value_v).
+constexpr bool better(direction d, double a, double b, double ideal) noexcept {
+    switch (d) {
+    case direction::lower_is_better:
+        return a < b;
+    case direction::higher_is_better:
+        return a > b;
+    case direction::toward_ideal:
+        return distance_from_ideal(a, ideal) < distance_from_ideal(b, ideal);
+    }
+    return false;
 }
+/// The same for the two one-way directions (toward_ideal here measures the distance to 0:
+/// pass the measure's ideal with the four-argument form instead).
+constexpr bool better(direction d, double a, double b) noexcept { return better(d, a, b, 0.0); }
 
 namespace detail {
 
@@ -65,7 +92,22 @@ constexpr bool has_key() {
     };
 }
 
+template <class M>
+constexpr bool declares_ideal() {
+    return requires {
+        { M::ideal } -> std::convertible_to<double>;
+    };
+}
+
 } // namespace detail
+
+/// Whether measure M declares an ideal value (and so direction::toward_ideal).
+template <class M>
+inline constexpr bool has_ideal_v = detail::declares_ideal<M>();
+
+/// The ideal value measure M declares (only for measures with has_ideal_v).
+template <class M>
+requires(detail::declares_ideal<M>()) inline constexpr double ideal_value_v = static_cast<double>(M::ideal);
 
 /// The prediction kind of measure M (a tag from heldout::kinds).
 template <class M>
@@ -82,6 +124,18 @@ struct measure_traits {
     using truth = truth_kind_t<M>;
     using capabilities = capabilities_t<M>;
     static constexpr direction better = M::better;
+    /// Whether M declares an ideal value (direction::toward_ideal).
+    static constexpr bool has_ideal = has_ideal_v<M>;
+    /// How bad a value is, as a number where lower is better: v for lower_is_better, -v for
+    /// higher_is_better, |v - ideal| for toward_ideal. Comparisons and tuning rank by it.
+    static constexpr double badness(double v) noexcept {
+        if constexpr (has_ideal_v<M>)
+            return distance_from_ideal(v, static_cast<double>(M::ideal));
+        else
+            return M::better == direction::lower_is_better ? v : -v;
+    }
+    /// Whether value a is better than value b for M (by badness).
+    static constexpr bool better_value(double a, double b) noexcept { return badness(a) < badness(b); }
     /// Whether M declares capability C.
     template <class C>
     static constexpr bool offers = offers_v<M, C>;

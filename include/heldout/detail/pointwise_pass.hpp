@@ -30,6 +30,7 @@
 #include <heldout/core/values.hpp>
 #include <heldout/detail/fast_log.hpp>
 #include <heldout/detail/isa.hpp>
+#include <heldout/detail/state_checks.hpp>
 #include <heldout/detail/sum.hpp>
 #include <heldout/detail/validate.hpp>
 
@@ -458,6 +459,16 @@ public:
         totals_.weight.visit_state(f);
         f(totals_.infinite_weight);
         f(count_);
+    }
+
+    /// After a load (stream/serialize.hpp): parameters in range, finite sums, weights >= 0.
+    void check_state() const {
+        check_loaded_parameters("parameters", [&] { policy_.validate(who()); });
+        totals_.loss.check_loaded("loss sum");
+        totals_.weight.check_loaded("weight sum");
+        if (totals_.weight.value() < 0)
+            fail_loaded("weight sum", "is negative");
+        check_loaded_nonnegative("infinite weight", totals_.infinite_weight);
     }
 
     /// For tests and benchmarks: the same batch through a chosen clone.

@@ -10,11 +10,13 @@
 #pragma once
 
 #include <heldout/core/config.hpp>
+#include <heldout/core/error.hpp>
 
 #include <array>
 #include <cmath>
 #include <cstddef>
 #include <limits>
+#include <string_view>
 
 HELDOUT_NAMESPACE_BEGIN
 namespace detail {
@@ -48,6 +50,11 @@ struct compensated_sum {
     void visit_state(F&& f) const {
         f(sum);
         f(carry);
+    }
+    /// After a load (stream/serialize.hpp): sum and carry finite.
+    void check_loaded(std::string_view field) const {
+        if (!std::isfinite(sum) || !std::isfinite(carry))
+            fail_loaded(field, "sum or carry is not finite");
     }
     friend bool operator==(const compensated_sum&, const compensated_sum&) = default;
 };

@@ -118,6 +118,7 @@ struct track_base {
     bool case_components = false;
     bool weighted_add = false;
     bool lower_is_better = false;
+    bool fitted_se = false;
     std::vector<std::optional<double>> values; // per split
     std::vector<std::string> reasons;          // per split, why undefined
     std::vector<double> losses;                // row_losses: per recorded test row, in record order
@@ -153,9 +154,20 @@ struct track_base {
                                                 std::size_t count) const = 0;
     /// The no-information error of Efron & Tibshirani (1997) on the apparent fit.
     virtual double no_information(const column_base& t, const column_base& p) const = 0;
+    /// The fitted value and its inverse-information se on rows [first, first + count) (cap::fitted_se).
+    virtual heldout::fitted_value fitted(const column_base& t, const column_base& p, std::size_t first,
+                                         std::size_t count) const = 0;
 };
 
 inline std::string undefined_reason(const undefined_error& e) { return e.problem(); }
+
+/// m.row_losses(...) through a call with dependent arguments: clang looks members up in a
+/// discarded `if constexpr` branch of a generic lambda when the object's type is not
+/// dependent, and refused measures without row_losses.
+template <class M, class T, class P>
+void row_losses_of(const M& m, const T& t, const P& p, std::span<double> out) {
+    m.row_losses(t, p, out);
+}
 
 /// Gamma of Efron & Tibshirani (1997): the mean loss over all pairs (truth y_i, prediction
 /// f_j) of the apparent fit. Squared error in closed form; label truth and predictions from
@@ -180,6 +192,7 @@ struct measure_track final : track_base {
         row_losses = offers_v<M, cap::row_losses>;
         case_components = offers_v<M, cap::case_components>;
         lower_is_better = M::better == direction::lower_is_better;
+        fitted_se = offers_v<M, cap::fitted_se>;
     }
     std::unique_ptr<track_base> clone() const override { return std::make_unique<measure_track>(*this); }
 
@@ -287,6 +300,18 @@ struct measure_track final : track_base {
         return c;
     }
 
+    heldout::fitted_value fitted(const column_base& t, const column_base& p, std::size_t first,
+                                 std::size_t count) const override {
+        heldout::fitted_value f;
+        if constexpr (offers_v<M, cap::fitted_se>) {
+            with_pairing(measure, t, p, first, count, "heldout::aggregator::estimate",
+                         [&](const auto& tt, const auto& pp) { f = measure.fitted(tt, pp); });
+        } else {
+            HELDOUT_ASSERT(false);
+        }
+        return f;
+    }
+
     double no_information(const column_base& t, const column_base& p) const override {
         return no_information_of(measure, t, p, "heldout::aggregator::estimate");
     }
@@ -326,8 +351,7 @@ double no_information_of(const M& m, const column_base& t, const column_base& p,
                     if (pt[a] == 0 || pq[b] == 0)
                         continue;
                     const std::int64_t ya = classes[a], fb = classes[b];
-                    m.row_losses(std::span<const std::int64_t>(&ya, 1), std::span<const std::int64_t>(&fb, 1),
-                                 std::span<double>(&v, 1));
+                    row_losses_of(m, TT(&ya, 1), PP(&fb, 1), std::span<double>(&v, 1));
                     s.add(pt[a] * pq[b] * v);
                 }
             gamma = s.value() / (static_cast<double>(n) * static_cast<double>(n));

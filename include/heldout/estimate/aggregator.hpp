@@ -6,6 +6,7 @@
 //       std::vector<double> f = fit_predict(s.train, s.test);    // predictions for s.test, in order
 //       agg.record(s, gather(y, s.test), f);                     // truth of the test rows, predictions
 //   }
+//   agg.set_model("ridge");                                      // its name in estimates, comparisons, CSV
 //   heldout::estimate e = agg.estimate(heldout::measure::mse{});  // corrected t: the valid default here
 //   auto naive = agg.estimate(heldout::measure::mse{}, heldout::ci::naive_t);   // for contrast
 //   std::cout << e << '\n';
@@ -116,7 +117,7 @@ public:
     aggregator(const aggregator& o)
         : splits_(o.splits_), rows_(o.rows_), truth_(copy(o.truth_)), pred_(copy(o.pred_)),
           apparent_truth_(copy(o.apparent_truth_)), apparent_pred_(copy(o.apparent_pred_)),
-          has_apparent_(o.has_apparent_), keep_(o.keep_), skipped_(o.skipped_) {
+          has_apparent_(o.has_apparent_), keep_(o.keep_), skipped_(o.skipped_), model_(o.model_) {
         for (const auto& t : o.tracks_)
             tracks_.push_back(t->clone());
     }
@@ -163,6 +164,12 @@ public:
         keep_ = keep;
     }
     bool keeps_predictions() const noexcept { return keep_; }
+
+    /// Names the model whose predictions are recorded: estimates carry the name (estimate::model),
+    /// compare() and compare_all_pairs use it for A and B, and the predictions CSV names its
+    /// column after it. Empty (the default): unnamed.
+    void set_model(std::string name) { model_ = std::move(name); }
+    const std::string& model() const noexcept { return model_; }
 
     /// Records one split: the truth of its test rows and the predictions for them, in the
     /// order of split.test (values, labels, class-probability rows, or another family's view).
@@ -347,17 +354,23 @@ public:
     }
 
     /// The out-of-fold predictions as CSV: split,repeat,fold,row,truth,prediction (one
-    /// prediction column per class for probability rows). Needs kept predictions.
+    /// prediction column per class for probability rows). Needs kept predictions. A named
+    /// model's columns are named after it (NAME, or NAME:j per class); several models in one
+    /// file: heldout::write_predictions_csv (estimate/predictions_csv.hpp).
     void write_predictions_csv(std::ostream& os) const {
         if (!keep_)
             detail::fail("heldout::aggregator::write_predictions_csv", "", "predictions were not kept");
         os << "split,repeat,fold,row,truth";
         const std::size_t cells = pred_ ? pred_->cells() : 1;
+        const std::string column = model_.empty() ? std::string("prediction") : detail::csv_field(model_);
+        const std::string sep = model_.empty() ? "_" : ":";
         if (cells > 1)
             for (std::size_t j = 0; j < cells; ++j)
-                os << ",prediction_" << j;
+                os << ','
+                   << (model_.empty() ? column + sep + std::to_string(j)
+                                      : detail::csv_field(model_ + sep + std::to_string(j)));
         else
-            os << ",prediction";
+            os << ',' << column;
         os << '\n';
         for (const auto& s : splits_)
             for (std::size_t i = 0; i < s.test_size; ++i) {
@@ -479,6 +492,7 @@ private:
     bool has_apparent_ = false;
     bool keep_ = true;
     std::size_t skipped_ = 0;
+    std::string model_;
 };
 
 namespace detail {
@@ -520,6 +534,7 @@ inline measure_facts facts_of(const track_base& t) {
     f.case_components = t.case_components;
     f.weighted_add = t.weighted_add;
     f.lower_is_better = t.lower_is_better;
+    f.fitted_se = t.fitted_se;
     return f;
 }
 
@@ -568,6 +583,7 @@ heldout::estimate aggregator::estimate(const M& m, ci::method method, double lev
 
     heldout::estimate e;
     e.measure = tr.name;
+    e.model = model_;
     e.level = level;
     e.per_split = per_split(tr);
     e.notes = detail::undefined_notes(tr);

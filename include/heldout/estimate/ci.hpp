@@ -24,11 +24,14 @@
 //                         undercover (the splits share training rows); reported for contrast only
 //   bootstrap_632         bootstrap plans: Efron's (1983) .632 point estimate (no interval)
 //   bootstrap_632_plus    bootstrap plans: Efron & Tibshirani's (1997) .632+ point estimate
+//   wald                  one test set, a fitted value (calibration slope / intercept): value
+//                         +- z se with se from the fit's inverse information (Wald 1943)
 //   automatic             the valid default for what was run (see below)
 //
 // ci::automatic resolves, from the recorded splits and the measure:
 //   one split: 0/1 losses -> wilson; AUC -> delong (newcombe when the smaller class has fewer
-//              than delong_small_class = 30 rows); other pointwise losses -> t; any other
+//              than delong_small_class = 30 rows); a fitted value -> wald; other pointwise
+//              losses -> t; any other
 //              measure -> bca with 2000 replicates, seed 0;
 //   several random splits without replacement -> corrected_t; leave-one-out, walk-forward,
 //   purged -> refused (heldout::design_rules);
@@ -78,6 +81,7 @@ inline constexpr method naive_t{method_id::naive_t};
 inline constexpr method bootstrap_632{method_id::bootstrap_632};
 inline constexpr method bootstrap_632_plus{method_id::bootstrap_632_plus};
 inline constexpr method newcombe{method_id::newcombe};
+inline constexpr method wald{method_id::wald};
 
 /// The identifier used in exports ("corrected_t"): the method table's key.
 constexpr std::string_view id_text(method_id m) noexcept { return info(m).key; }

@@ -12,7 +12,7 @@
 //   Eigen::MatrixXd L(2, 3);  L << 1, -1, 0,  0, 1, -1;       // H0: all three AUCs equal
 //   auto chi = c.test(L);                                     // chi.statistic, chi.df, chi.p_value
 //
-// Method (methods.md §3.3-3.4). Positives X_i (m of them), negatives Y_j (n). Structural
+// Method (DeLong et al. 1988; Sun & Xu 2014). Positives X_i (m of them), negatives Y_j (n). Structural
 // components V10(X_i) = (#{Y < X_i} + #{Y = X_i}/2)/n and V01(Y_j) = (#{X > Y_j} + #{X = Y_j}/2)/m,
 // which are Sun & Xu's (T_Z - T_X)/n and 1 - (T_Z - T_Y)/m; both come from one sort of the
 // pooled scores (positives and negatives tied to each other fall in one tie group). Then
@@ -94,7 +94,11 @@ struct auc_covariance {
 
     /// Tests H0: L auc = 0 with (L A)'(L S L')^-1 (L A) ~ chi-squared(rank L). L has k columns
     /// and linearly independent rows (input_error otherwise); a singular L S L' is undefined.
-    auc_contrast_test test(const Eigen::MatrixXd& L) const {
+    /// A template over the Eigen expression so that the decompositions below are compiled only
+    /// in translation units that call it, not in every one that includes heldout.
+    template <class Derived>
+    auc_contrast_test test(const Eigen::MatrixBase<Derived>& contrast) const {
+        const Eigen::MatrixXd L = contrast;
         constexpr std::string_view who = "heldout::auc_covariance::test";
         if (L.cols() != auc.size() || L.rows() == 0)
             detail::fail(who, "L",

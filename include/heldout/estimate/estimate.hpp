@@ -29,6 +29,7 @@
 #include <heldout/detail/json.hpp>
 #include <heldout/estimate/ci.hpp>
 
+#include <algorithm>
 #include <charconv>
 #include <cmath>
 #include <cstddef>
@@ -69,6 +70,7 @@ struct estimate {
     std::vector<std::string> notes;                  ///< how it was made
     std::vector<std::string> cautions;               ///< why the interval may not keep its level
     std::vector<split_value> per_split;              ///< every recorded split, in record order
+    std::string model{};                             ///< the model's name (aggregator::set_model); empty: unnamed
 
     bool has_interval() const noexcept { return lower.has_value() && upper.has_value(); }
 };
@@ -82,6 +84,32 @@ inline std::string readable_number(double x) {
     char buf[64];
     const auto r = std::to_chars(buf, buf + sizeof buf, x, std::chars_format::general, 4);
     return std::string(buf, r.ptr);
+}
+
+/// Numbers inside notes, for people: whole numbers as they are ("1080"), others with 4
+/// significant digits and no exponent from 1e-4 up ("0.1234", "1079.5", "12346"); the
+/// full-precision values are in the estimate's fields and exports, never in words.
+inline std::string note_number(double x) {
+    if (!std::isfinite(x))
+        return readable_number(x);
+    char buf[64];
+    const double a = std::abs(x);
+    if (a < 1e15 && x == std::round(x)) {
+        const auto r = std::to_chars(buf, buf + sizeof buf, x, std::chars_format::fixed, 0);
+        return std::string(buf, r.ptr);
+    }
+    if (a < 1e-4 || a >= 1e15)
+        return readable_number(x);
+    const int magnitude = static_cast<int>(std::floor(std::log10(a)));
+    const auto r = std::to_chars(buf, buf + sizeof buf, x, std::chars_format::fixed, std::max(0, 3 - magnitude));
+    std::string s(buf, r.ptr);
+    if (s.find('.') != std::string::npos) { // 0.1200 -> 0.12
+        while (s.back() == '0')
+            s.pop_back();
+        if (s.back() == '.')
+            s.pop_back();
+    }
+    return s;
 }
 
 inline std::string level_text(double level) {
@@ -110,6 +138,8 @@ inline std::string csv_number(const std::optional<double>& x) {
 
 inline void write_estimate_json(json_writer& w, const estimate& e) {
     w.begin_object();
+    if (!e.model.empty())
+        w.member("model", e.model);
     w.member("measure", e.measure);
     w.member("method", ci::id_text(e.method));
     w.member("method_label", e.method_label);
@@ -148,12 +178,14 @@ inline void write_estimate_json(json_writer& w, const estimate& e) {
 
 } // namespace detail
 
-/// One line: measure, value, [lower, upper], level, method, splits, rows, then each caution.
+/// One line: [model:] measure, value, [lower, upper], level, method, splits, rows, then each caution.
 ///   "MSE 0.4123 [0.3712, 0.4551] 95% corrected t (Nadeau-Bengio), 50 splits, n=5000"
+///   "ridge: MSE 0.4123 [0.3712, 0.4551] 95% ..."                       (a named model)
 ///   "AUC 0.871 [0.848, 0.893] 95% DeLong, n=1200"                    (one test set)
 ///   "error rate 0.1872 (.632+ bootstrap, point estimate), 200 splits, n=7350"
 inline std::ostream& operator<<(std::ostream& os, const estimate& e) {
-    std::string s = e.measure + " " + detail::readable_number(e.value);
+    std::string s =
+        (e.model.empty() ? std::string() : e.model + ": ") + e.measure + " " + detail::readable_number(e.value);
     if (e.has_interval()) {
         s += " [" + detail::readable_number(*e.lower) + ", " + detail::readable_number(*e.upper) + "] " +
              detail::level_text(e.level) + " " + e.method_label;
@@ -194,7 +226,7 @@ inline void write_json(std::ostream& os, std::initializer_list<estimate> es) {
 }
 
 /// The CSV header written by write_csv.
-inline constexpr std::string_view csv_header = "record,measure,method,level,value,se,lower,upper,pooled,splits,"
+inline constexpr std::string_view csv_header = "record,model,measure,method,level,value,se,lower,upper,pooled,splits,"
                                                "observations,split,repeat,fold,train_size,test_size,notes,cautions";
 
 /// CSV with a header line; per estimate, one `estimate` row then one `split` row per split
@@ -208,8 +240,8 @@ inline void write_csv(std::ostream& os, std::span<const estimate> es) {
             notes += (notes.empty() ? "" : "; ") + n;
         for (const auto& c : e.cautions)
             cautions += (cautions.empty() ? "" : "; ") + c;
-        const std::string head = detail::csv_field(e.measure) + "," + std::string(ci::id_text(e.method)) + "," +
-                                 detail::number_text(e.level);
+        const std::string head = detail::csv_field(e.model) + "," + detail::csv_field(e.measure) + "," +
+                                 std::string(ci::id_text(e.method)) + "," + detail::number_text(e.level);
         os << "estimate," << head << "," << detail::number_text(e.value) << "," << detail::csv_number(e.se) << ","
            << detail::csv_number(e.lower) << "," << detail::csv_number(e.upper) << "," << detail::csv_number(e.pooled)
            << "," << e.splits << "," << e.observations << ",,,,,," << detail::csv_field(notes) << ","

@@ -143,7 +143,7 @@ void estimate_bootstrap(const In& in, estimate& e, ci::method_id id) {
                        ", the model held fixed: " + std::to_string(set.values.size()) + " replicates, seed " +
                        std::to_string(in.method.seed) + "; se is the replicates' standard deviation";
     if (id == ci::method_id::bca)
-        note += "; z0 " + number_text(r.z0) + ", acceleration " + number_text(r.acceleration);
+        note += "; z0 " + note_number(r.z0) + ", acceleration " + note_number(r.acceleration);
     e.notes.push_back(note);
     if (set.undefined > 0)
         e.notes.push_back(std::to_string(set.undefined) + " of " + std::to_string(o.replicates) +
@@ -179,6 +179,18 @@ void estimate_newcombe(const In& in, estimate& e) {
 }
 
 template <class In>
+void estimate_wald(const In& in, estimate& e) {
+    const std::size_t n = in.splits[0].test_size;
+    const auto f = in.track.fitted(*in.truth, *in.predictions, 0, n);
+    const double z = two_sided_z(in.level);
+    e.se = f.se;
+    e.lower = f.value - z * f.se;
+    e.upper = f.value + z * f.se;
+    e.notes.push_back("Wald interval value +- z se, se from the inverse Fisher information of the fit on the " +
+                      count_text(n, "test row") + " (" + count_text(f.iterations, "Newton step") + ")");
+}
+
+template <class In>
 void estimate_resampled_t(const In& in, estimate& e, ci::method_id id) {
     if (in.values.size() < 2)
         fail_undefined(in.who, "only one split has a defined value; " + method_name(id) + " needs two or more");
@@ -188,8 +200,8 @@ void estimate_resampled_t(const In& in, estimate& e, ci::method_id id) {
         e.lower = r.lower;
         e.upper = r.upper;
         e.notes.push_back("Nadeau-Bengio corrected resampled t over " + count_text(in.values.size(), "split") +
-                          ": variance factor 1/J + n_test/n_train with n_train " + number_text(in.mean_train) +
-                          ", n_test " + number_text(in.mean_test) +
+                          ": variance factor 1/J + n_test/n_train with n_train " + note_number(in.mean_train) +
+                          ", n_test " + note_number(in.mean_test) +
                           (in.sizes_vary ? " (mean sizes over the splits)" : "") + "; df " +
                           std::to_string(in.values.size() - 1));
     } else {
@@ -226,12 +238,12 @@ void estimate_632(const In& in, estimate& e, ci::method_id id) {
     const auto r = bootstrap_632(*in.track.apparent, err1, gamma);
     e.value = id == ci::method_id::bootstrap_632 ? r.err_632 : r.err_632_plus;
     e.notes.push_back(
-        "point estimate (no interval): apparent " + number_text(r.apparent) + ", leave-one-out bootstrap " +
-        number_text(err1) + ", no-information " + number_text(gamma) +
+        "point estimate (no interval): apparent " + note_number(r.apparent) + ", leave-one-out bootstrap " +
+        note_number(err1) + ", no-information " + note_number(gamma) +
         (id == ci::method_id::bootstrap_632_plus
-             ? ", relative overfitting " + number_text(r.relative_overfitting) + ", weight " + number_text(r.weight)
+             ? ", relative overfitting " + note_number(r.relative_overfitting) + ", weight " + note_number(r.weight)
              : std::string(", weight 0.632")) +
-        "; mean of the per-split out-of-bag values " + number_text(mean_of(in.values)));
+        "; mean of the per-split out-of-bag values " + note_number(mean_of(in.values)));
     if (const std::size_t never = oob.never_out_of_bag(); never > 0)
         e.notes.push_back(count_text(never, "row") + " never out of bag, left out of the leave-one-out "
                                                      "bootstrap error");
@@ -260,6 +272,8 @@ void run_interval(ci::method_id id, const In& in, estimate& e) {
     case ci::method_id::bootstrap_632:
     case ci::method_id::bootstrap_632_plus:
         return estimate_632(in, e, id);
+    case ci::method_id::wald:
+        return estimate_wald(in, e);
     case ci::method_id::automatic:
         break;
     }

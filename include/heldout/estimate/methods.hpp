@@ -41,7 +41,9 @@ enum class need : std::uint32_t {
     lower_is_better = 1u << 9,  ///< an error (the .632 rules estimate errors)
     apparent = 1u << 10,        ///< the apparent (resubstitution) result was recorded
     five_by_two = 1u << 11,     ///< exactly the 10 splits of heldout::five_by_two, in order
-    resamplable = 1u << 12      ///< per-row values, or a weighted add with kept predictions (the bootstrap)
+    resamplable = 1u << 12,     ///< per-row values, or a weighted add with kept predictions (the bootstrap)
+    query_values = 1u << 13,    ///< per-query values of two rankers on the same queries (heldout::compare_queries)
+    fitted_se = 1u << 14        ///< a fitted value with its inverse-information standard error (cap::fitted_se)
 };
 constexpr need operator|(need a, need b) noexcept {
     return static_cast<need>(static_cast<std::uint32_t>(a) | static_cast<std::uint32_t>(b));
@@ -69,6 +71,7 @@ struct record_shape {
     bool five_by_two = false;                   ///< the 10 splits of five_by_two, in order
     bool kept_predictions = true;
     bool apparent = false;
+    bool query_values = false; ///< per-query values of a query measure (compare_queries), not splits
 };
 
 /// What the measure offers, as far as methods care.
@@ -81,6 +84,7 @@ struct measure_facts {
     /// Rows in the smaller of the two classes behind a two-sample U statistic (the AUC's
     /// positives or negatives) on one test set; 0 when unknown or not such a measure.
     std::size_t smaller_class = 0;
+    bool fitted_se = false;
 };
 
 /// Below this many rows in the smaller class, ci::automatic takes ci::newcombe instead of
@@ -107,7 +111,8 @@ enum class method_id : unsigned char {
     naive_t,
     bootstrap_632,
     bootstrap_632_plus,
-    newcombe
+    newcombe,
+    wald
 };
 
 /// The interval methods, indexed by method_id (automatic first).
@@ -152,6 +157,10 @@ inline constexpr std::array<method_info, 13> methods{{
      "score-type interval of a two-sample U statistic (the ROC AUC) from its value and class counts, "
      "Hanley-McNeil variance with N* = (m + n)/2 - 1; defined at AUC 0 and 1",
      need::one_test_set | need::case_components | need::kept_predictions, true},
+    {"wald", "Wald (inverse information)", "Wald (1943), Trans. AMS 54:426-482; Cox (1958), Biometrika 45:562-565",
+     "value +- z se, se from the inverse Fisher information of the model fitted to one test set "
+     "(calibration slope and intercept)",
+     need::one_test_set | need::fitted_se | need::kept_predictions, true},
 }};
 
 /// The table row of an interval method.
@@ -174,11 +183,13 @@ enum class method_id : unsigned char {
     mcnemar_corrected,
     delong,
     bootstrap_percentile,
-    bootstrap_bca
+    bootstrap_bca,
+    query_t,
+    randomization
 };
 
 /// The paired comparisons of two models, indexed by method_id (automatic first).
-inline constexpr std::array<method_info, 12> methods{{
+inline constexpr std::array<method_info, 14> methods{{
     {"automatic", "automatic", "", "the valid default for what was recorded (see the rules in docs/compare.md)",
      need::none, true},
     {"corrected_t", "corrected t",
@@ -214,6 +225,14 @@ inline constexpr std::array<method_info, 12> methods{{
     {"bootstrap_bca", "paired BCa bootstrap", "Efron (1987), JASA 82:171-185; Davison & Hinkley (1997), 4.2",
      "BCa interval of the difference over the same resamples; Monte-Carlo p-value",
      need::one_test_set | need::resamplable, true},
+    {"query_t", "paired t over queries", "Student (1908); Smucker, Allan & Carterette (2007), CIKM",
+     "paired t on the per-query differences of two rankers on the same queries (heldout::compare_queries)",
+     need::query_values, true},
+    {"randomization", "paired randomization (sign flip) over queries",
+     "Fisher (1935); Smucker, Allan & Carterette (2007), CIKM; Phipson & Smyth (2010)",
+     "share of sign vectors s with |sum s_q d_q| >= |sum d_q|: exact up to 20 queries, else seeded Monte Carlo; "
+     "t interval of the mean difference (heldout::compare_queries)",
+     need::query_values, true},
 }};
 
 /// The table row of a paired method.
@@ -258,6 +277,11 @@ inline std::string_view need_text(need n) {
     case need::resamplable:
         return "it resamples rows: it needs per-row values (cap::row_losses), or a weighted add and the kept "
                "predictions of both models";
+    case need::query_values:
+        return "it compares the per-query values of two rankers (heldout::compare_queries), not recorded splits";
+    case need::fitted_se:
+        return "the measure is not a fitted model parameter with an inverse-information standard error (it does "
+               "not offer cap::fitted_se)";
     case need::none:
         break;
     }
@@ -286,6 +310,8 @@ inline std::vector<need> unmet_needs(need needs, const record_shape& r, const me
     check(need::apparent, r.apparent);
     check(need::five_by_two, r.five_by_two);
     check(need::resamplable, f.row_losses || (f.weighted_add && r.kept_predictions));
+    check(need::query_values, r.query_values);
+    check(need::fitted_se, f.fitted_se);
     return out;
 }
 
@@ -365,6 +391,7 @@ inline std::vector<method_id> applicable(const record_shape& r, const measure_fa
 ///   one test set, 0/1 per-row values      -> wilson
 ///   one test set, DeLong components       -> delong, or newcombe when the smaller class has
 ///                                            fewer than delong_small_class rows
+///   one test set, a fitted value with se  -> wald
 ///   one test set, per-row values          -> t
 ///   one test set, otherwise               -> bca (weighted add, kept predictions)
 ///   several random splits w/o replacement -> corrected_t
@@ -374,8 +401,8 @@ inline std::optional<method_id> automatic_choice(const record_shape& r, const me
     auto ok = [&](method_id id) { return unmet_needs(info(id).needs, r, f).empty(); };
     if (r.splits == 1 && !r.bootstrap) {
         const bool small = f.smaller_class > 0 && f.smaller_class < delong_small_class;
-        for (const method_id id :
-             {method_id::wilson, small ? method_id::newcombe : method_id::delong, method_id::t, method_id::bca})
+        for (const method_id id : {method_id::wilson, small ? method_id::newcombe : method_id::delong,
+                                   method_id::wald, method_id::t, method_id::bca})
             if (ok(id))
                 return id;
         return std::nullopt;

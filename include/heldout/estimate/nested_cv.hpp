@@ -22,7 +22,7 @@
 //   se = sqrt(max(MSE, 0) (K-1)/K), kept within [se_naive, sqrt(K) se_naive], where
 //   se_naive = sd of all R n outer losses (denominator R n - 1) / sqrt(n) — repetitions add
 //   no new rows; interval value +- z_{1-a/2} se (normal quantile).
-// The constants follow ../shared/methods.md section 13, which marks the (K-1)/K factor and
+// The constants follow Bates, Hastie & Tibshirani (2023), which marks the (K-1)/K factor and
 // the guard as recalled from the paper rather than checked against it; `guard` records
 // which bound was applied. Cost: R K^2 fits. The paper needs R of the order of hundreds
 // for a stable MSE estimate; its experiments used 90% intervals.

@@ -37,8 +37,9 @@
 //     Nadeau-Bengio corrected t; one holdout split: Wilson for an error rate, ...).
 // inner_best is the mean over outer splits of the chosen candidate's inner value, what
 // reporting the best tuned figure would show; optimism = outer.value - inner_best for a
-// lower-is-better measure, inner_best - outer.value otherwise, so a positive optimism is
-// the selection bias the nested evaluation removed.
+// lower-is-better measure, inner_best - outer.value for a higher-is-better one, and
+// |outer.value - ideal| - |inner_best - ideal| for a measure with an ideal value, so a
+// positive optimism is the selection bias the nested evaluation removed.
 //
 // Cost: outer x (inner x candidates + 1) fits (the sum over outer splits when the inner
 // count varies), checked and printed before any fit to options.cost_stream (default
@@ -327,7 +328,7 @@ outer_outcome<R> run_outer_split(const split& o, const P& inner_plan, const stra
         const double v = sum[c] / static_cast<double>(count[c]);
         out.inner[c] = v;
         // Strictly better only: among equal values the lowest index stays chosen.
-        if (!best || heldout::better(M::better, v, *out.inner[*best]))
+        if (!best || measure_traits<M>::better_value(v, *out.inner[*best]))
             best = c;
     }
     if (!best)
@@ -548,8 +549,8 @@ requires split_source<std::remove_reference_t<Splits>> &&
         res.outer = detail::point_only(res.recorded, measure, options, e);
     }
     res.inner_best = inner_sum / static_cast<double>(J);
-    res.optimism =
-        M::better == direction::lower_is_better ? res.outer.value - res.inner_best : res.inner_best - res.outer.value;
+    // How much better the inner choice looked than the outer estimate (badness: lower is better).
+    res.optimism = measure_traits<M>::badness(res.outer.value) - measure_traits<M>::badness(res.inner_best);
 
     res.notes.push_back("nested evaluation: each of the " + std::to_string(J) + " outer splits chose among " +
                         std::to_string(candidates) + " candidates by " + std::string(detail::plan_name<InnerPlan>()) +

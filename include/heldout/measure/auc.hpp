@@ -35,6 +35,7 @@
 #include <heldout/core/measure.hpp>
 #include <heldout/detail/auc_resampling.hpp>
 #include <heldout/detail/ranks.hpp>
+#include <heldout/detail/state_checks.hpp>
 #include <heldout/measure/ranked_sample.hpp>
 
 #include <algorithm>
@@ -161,6 +162,24 @@ public:
         f(wide_);
         f(labels_);
         f(weights_);
+    }
+
+    /// After a load (stream/serialize.hpp): float or double scores (not both), one score and
+    /// one 0/1 label per row, finite scores, weights absent or one finite weight >= 0 per row.
+    void check_state() const {
+        if (!narrow_.empty() && !wide_.empty())
+            fail_loaded("scores", "holds both float and double scores");
+        const std::size_t n = labels_.size();
+        if (n > max_packed_rows)
+            fail_loaded("labels", "more than 2^31 - 1 rows");
+        check_loaded_size(wide_.empty() ? "float scores" : "double scores",
+                          wide_.empty() ? narrow_.size() : wide_.size(), n, "one per label");
+        check_loaded_finite("float scores", std::span<const float>(narrow_));
+        check_loaded_finite("double scores", std::span<const double>(wide_));
+        check_loaded_labels("labels", std::span<const std::uint8_t>(labels_), 2);
+        if (!weights_.empty())
+            check_loaded_size("weights", weights_.size(), n, "one per row");
+        check_loaded_nonnegative("weights", std::span<const double>(weights_));
     }
 
 private:
@@ -302,6 +321,14 @@ public:
         store_.visit_state(f);
     }
 
+    /// After a load (stream/serialize.hpp): the parameters (an Eval with parameters checks
+    /// them in check_loaded()), then the carried rows.
+    void check_state() const {
+        if constexpr (requires { eval_.check_loaded(); })
+            eval_.check_loaded();
+        store_.check_state();
+    }
+
 private:
     Eval eval_{};
     score_store store_;
@@ -376,6 +403,9 @@ public:
     void visit_state(F&& f) const {
         store_.visit_state(f);
     }
+
+    /// After a load (stream/serialize.hpp): the carried rows.
+    void check_state() const { store_.check_state(); }
 
 private:
     static std::string_view who() { return "measure AUC"; }

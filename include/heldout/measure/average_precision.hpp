@@ -9,7 +9,7 @@
 // Rows are ranked by score, decreasing; the thresholds are the distinct scores and tied
 // scores enter together as one group (so the value never depends on the order of ties).
 // After group k: TP_k, FP_k (weights, or counts), P_k = TP_k / (TP_k + FP_k), R_k = TP_k / N_pos,
-// R_0 = 0 (methods.md §4).
+// R_0 = 0 (Davis & Goadrich 2006, worked by hand).
 //  * average_precision = sum_k (R_k - R_{k-1}) P_k. Without ties it is the information-retrieval
 //    mean of precision at the rank of each positive (Manning, Raghavan & Schütze 2008, ch. 8).
 //  * auprc = sum_k (R_k - R_{k-1}) (P_k + P_{k-1}) / 2, the trapezoid through the PR points, which
@@ -98,6 +98,11 @@ struct auprc_eval {
     }
     bool operator==(const auprc_eval&) const = default;
     measure::auprc measure() const;
+    /// After a load: a known pr_start code.
+    void check_loaded() const {
+        if (start > static_cast<std::uint8_t>(pr_start::first_precision))
+            detail::fail_loaded("start", "unknown code " + std::to_string(start));
+    }
     template <class F>
     void visit_state(F&& f) {
         f(start);

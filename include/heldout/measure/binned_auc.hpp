@@ -30,6 +30,7 @@
 
 #include <heldout/core/measure.hpp>
 #include <heldout/detail/ranks.hpp>
+#include <heldout/detail/state_checks.hpp>
 
 #include <algorithm>
 #include <cmath>
@@ -139,6 +140,19 @@ public:
         f(high_);
         f(positive_);
         f(negative_);
+    }
+
+    /// After a load (stream/serialize.hpp): bins in 1..2^24 and equal to the stored bins,
+    /// finite low < high, bin weights finite and >= 0.
+    void check_state() const {
+        if (bins_ == 0 || bins_ > max_bins)
+            detail::fail_loaded("bins", std::to_string(bins_) + " outside 1..2^24");
+        detail::check_loaded_size("positive", positive_.size(), static_cast<std::size_t>(bins_), "one per bin");
+        detail::check_loaded_size("negative", negative_.size(), static_cast<std::size_t>(bins_), "one per bin");
+        if (!(std::isfinite(low_) && std::isfinite(high_) && low_ < high_ && std::isfinite(high_ - low_)))
+            detail::fail_loaded("range", "need finite low < high, got " + range());
+        detail::check_loaded_nonnegative("positive", std::span<const double>(positive_));
+        detail::check_loaded_nonnegative("negative", std::span<const double>(negative_));
     }
 
 private:

@@ -135,6 +135,16 @@ public:
         f(count_);
     }
 
+    /// After a load (stream/serialize.hpp): finite sums, weight and score >= 0.
+    void check_state() const {
+        score_.check_loaded("score sum");
+        weight_.check_loaded("weight sum");
+        if (score_.value() < 0)
+            detail::fail_loaded("score sum", "is negative");
+        if (weight_.value() < 0)
+            detail::fail_loaded("weight sum", "is negative");
+    }
+
 private:
     static std::string_view who() { return "measure multiclass Brier score"; }
 

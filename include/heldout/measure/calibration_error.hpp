@@ -32,6 +32,7 @@
 #pragma once
 
 #include <heldout/core/measure.hpp>
+#include <heldout/detail/state_checks.hpp>
 #include <heldout/detail/sum.hpp>
 #include <heldout/detail/validate.hpp>
 
@@ -202,6 +203,48 @@ public:
     template <class F>
     void visit_state(F&& f) const {
         visit(*this, f);
+    }
+
+    /// After a load (stream/serialize.hpp): bins positive (at most 2^20 with equal-count bins,
+    /// whose value() allocates per bin), known codes, 6 sums per bin (equal width) or rows of
+    /// confidence, hit and weight of one length (equal count), confidences in [0, 1], hits
+    /// 0/1, finite non-negative weights, finite sums.
+    void check_state() const {
+        if (bins_ == 0)
+            detail::fail_loaded("bins", "the number of bins must be positive");
+        if (rule_ > 1 || variant_ > 1 || statistic_ > 1)
+            detail::fail_loaded("binning", "unknown binning, variant or statistic code");
+        if (multiclass_ && variant_ != static_cast<std::uint8_t>(calibration_variant::top_label))
+            detail::fail_loaded("variant", "a multiclass calibration error is top-label");
+        detail::check_loaded_nonnegative("weight", weight_);
+        detail::check_loaded_finite("weight carry", weight_carry_);
+        if (equal_count()) {
+            if (bins_ > (std::uint64_t{1} << 20))
+                detail::fail_loaded("bins", "more than 2^20 equal-count bins");
+            if (!bin_state_.empty())
+                detail::fail_loaded("bin sums", "an equal-count state keeps rows, not bin sums");
+            detail::check_loaded_size("rows", conf_.size(), count_, "the row count");
+            detail::check_loaded_size("hits", hit_.size(), conf_.size(), "one per confidence");
+            detail::check_loaded_size("row weights", row_weight_.size(), conf_.size(), "one per confidence");
+            for (std::size_t i = 0; i < conf_.size(); ++i) {
+                if (!(conf_[i] >= 0 && conf_[i] <= 1))
+                    detail::fail_loaded("confidences", "element " + std::to_string(i) + " is not in [0, 1]");
+                if (!(hit_[i] == 0 || hit_[i] == 1))
+                    detail::fail_loaded("hits", "element " + std::to_string(i) + " is not 0 or 1");
+            }
+            detail::check_loaded_nonnegative("row weights", std::span<const double>(row_weight_));
+        } else {
+            if (bins_ > bin_state_.size() / 6)
+                detail::fail_loaded("bins", "says " + std::to_string(bins_) + " bins, the state holds sums for " +
+                                                std::to_string(bin_state_.size() / 6));
+            detail::check_loaded_size("bin sums", bin_state_.size(), 6 * bins_, "6 per bin");
+            if (!conf_.empty() || !hit_.empty() || !row_weight_.empty())
+                detail::fail_loaded("rows", "an equal-width state keeps bin sums, not rows");
+            detail::check_loaded_finite("bin sums", std::span<const double>(bin_state_));
+            for (std::size_t m = 0; m < bins_; ++m)
+                if (bin_state_[6 * m] < 0)
+                    detail::fail_loaded("bin sums", "bin " + std::to_string(m) + " has a negative weight");
+        }
     }
 
 private:

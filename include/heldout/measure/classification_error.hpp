@@ -12,6 +12,7 @@
 // are counted exactly in one fused pass (mismatches and the label range check together).
 #pragma once
 
+#include <heldout/detail/state_checks.hpp>
 #include <heldout/measure/confusion_matrix.hpp>
 
 #include <array>
@@ -151,6 +152,16 @@ public:
         mismatches_.visit_state(f);
         weight_.visit_state(f);
         f(count_);
+    }
+
+    /// After a load (stream/serialize.hpp): finite sums, 0 <= mismatch weight <= total weight.
+    void check_state() const {
+        mismatches_.check_loaded("mismatch sum");
+        weight_.check_loaded("weight sum");
+        if (!(mismatches_.value() >= 0 && weight_.value() >= 0))
+            detail::fail_loaded("weight sum", "a weight sum is negative");
+        if (mismatches_.value() > weight_.value() * (1 + 1e-12))
+            detail::fail_loaded("mismatch sum", "exceeds the total weight");
     }
 
 private:

@@ -27,6 +27,7 @@
 
 #include <heldout/core/measure.hpp>
 #include <heldout/detail/isa.hpp>
+#include <heldout/detail/state_checks.hpp>
 #include <heldout/detail/sum.hpp>
 #include <heldout/detail/validate.hpp>
 
@@ -599,7 +600,6 @@ public:
         f(cells_);
         f(carry_);
         f(count_);
-        check_state();
     }
     template <class F>
     void visit_state(F&& f) const {
@@ -609,6 +609,19 @@ public:
         f(cells_);
         f(carry_);
         f(count_);
+    }
+
+    /// After a load (stream/serialize.hpp): a state this class can produce: k within the
+    /// fixed or largest classes, k x k cells and carries, cells finite and >= 0.
+    void check_state() const {
+        const bool ok = classes_ <= max_classes && k_ <= max_classes && (classes_ == 0 || k_ == classes_) &&
+                        cells_.size() == k_ * k_ && carry_.size() == cells_.size();
+        if (!ok)
+            detail::fail_loaded("cells", "inconsistent confusion table state (classes " + std::to_string(classes_) +
+                                             ", k " + std::to_string(k_) + ", " + std::to_string(cells_.size()) +
+                                             " cells)");
+        detail::check_loaded_nonnegative("cells", std::span<const double>(cells_));
+        detail::check_loaded_finite("carries", std::span<const double>(carry_));
     }
 
 private:
@@ -635,16 +648,6 @@ private:
             std::fill(carry + to + old, carry + to + k, 0.0);
         }
         k_ = k;
-    }
-
-    /// A state read from bytes must be one this class can produce.
-    void check_state() const {
-        const bool ok = classes_ <= max_classes && k_ <= max_classes && (classes_ == 0 || k_ == classes_) &&
-                        cells_.size() == k_ * k_ && carry_.size() == cells_.size();
-        if (!ok)
-            detail::fail("heldout::deserialize", "bytes",
-                         "inconsistent confusion table state (classes " + std::to_string(classes_) + ", k " +
-                             std::to_string(k_) + ", " + std::to_string(cells_.size()) + " cells)");
     }
 
     template <class T, class P>
@@ -950,6 +953,12 @@ public:
     void visit_state(F&& f) const {
         f(m_);
         table_.visit_state(f);
+    }
+    /// After a load (stream/serialize.hpp): the parameters as the constructor checks them,
+    /// then the table.
+    void check_state() const {
+        detail::check_loaded_parameters("parameters", [&] { (void)m_.table_classes(); });
+        table_.check_state();
     }
 
 private:

@@ -50,8 +50,13 @@ public:
         std::string c;
         for (Eigen::Index i = 0; i < costs_.rows(); ++i) {
             c += i == 0 ? "costs [" : "; ";
-            for (Eigen::Index j = 0; j < costs_.cols(); ++j)
-                c += (j == 0 ? "" : " ") + detail::number_text(costs_(i, j));
+            for (Eigen::Index j = 0; j < costs_.cols(); ++j) {
+                // appended piece by piece: g++ 12 -O3 warns (-Wrestrict, a false positive) on
+                // "literal" + std::string here, which failed the release build of the demo
+                if (j > 0)
+                    c += ' ';
+                c += detail::number_text(costs_(i, j));
+            }
         }
         if (!c.empty())
             c += "]";

@@ -247,6 +247,16 @@ public:
         f(count_);
     }
 
+    /// After a load (stream/serialize.hpp): eps in range, finite sums, weights >= 0.
+    void check_state() const {
+        detail::check_loaded_parameters("eps", [&] { detail::cross_entropy_policy{eps_}.validate(who()); });
+        loss_.check_loaded("loss sum");
+        weight_.check_loaded("weight sum");
+        if (weight_.value() < 0)
+            detail::fail_loaded("weight sum", "is negative");
+        detail::check_loaded_nonnegative("infinite weight", infinite_weight_);
+    }
+
 private:
     static std::string_view who() { return "measure multiclass cross-entropy"; }
 

@@ -11,6 +11,7 @@
 
 #include <heldout/core/measure.hpp>
 #include <heldout/detail/pointwise_pass.hpp>
+#include <heldout/detail/state_checks.hpp>
 #include <heldout/detail/validate.hpp>
 
 #include <cmath>
@@ -97,6 +98,16 @@ public:
         f(max_);
         f(count_);
         f(positive_);
+    }
+
+    /// After a load (stream/serialize.hpp): the maximum finite and >= 0 (0 with no row of
+    /// positive weight), rows of positive weight at most the rows.
+    void check_state() const {
+        detail::check_loaded_nonnegative("max", max_);
+        if (positive_ > count_)
+            detail::fail_loaded("positive", "more rows of positive weight than rows");
+        if (positive_ == 0 && max_ != 0)
+            detail::fail_loaded("max", "is not 0 with no row of positive weight");
     }
 
 private:

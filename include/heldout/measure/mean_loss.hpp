@@ -27,6 +27,7 @@
 #include <heldout/core/loss.hpp>
 #include <heldout/core/measure.hpp>
 #include <heldout/detail/pointwise_pass.hpp>
+#include <heldout/detail/state_checks.hpp>
 #include <heldout/detail/sum.hpp>
 #include <heldout/detail/validate.hpp>
 #include <heldout/loss/squared.hpp>
@@ -173,10 +174,8 @@ public:
     // visit_state; they come first, so deserialised bytes restore them.
     template <class F>
     void visit_state(F&& f) {
-        if constexpr (loss_traits<L>::has_parameters) {
-            f(loss_);
-            loss_traits<L>::validate(loss_, who()); // parameters read from bytes are checked like given ones
-        }
+        if constexpr (loss_traits<L>::has_parameters)
+            f(loss_); // checked by check_state() once everything is read
         loss_sum_.visit_state(f);
         weight_sum_.visit_state(f);
         f(unit_);
@@ -190,6 +189,19 @@ public:
         weight_sum_.visit_state(f);
         f(unit_);
         f(count_);
+    }
+
+    /// After a load (stream/serialize.hpp): loss parameters checked like given ones, finite
+    /// sums, weight sum >= 0, the unit a binary exponent a weight can have.
+    void check_state() const {
+        if constexpr (loss_traits<L>::has_parameters)
+            detail::check_loaded_parameters("loss", [&] { loss_traits<L>::validate(loss_, who()); });
+        loss_sum_.check_loaded("loss sum");
+        weight_sum_.check_loaded("weight sum");
+        if (weight_sum_.value() < 0)
+            detail::fail_loaded("weight sum", "is negative");
+        if (unit_ < -1100 || unit_ > 1100)
+            detail::fail_loaded("unit", "exponent " + std::to_string(unit_) + " outside the range of a double");
     }
 
     /// For tests and benchmarks: a batch through a chosen clone of the pass (baseline and

@@ -15,6 +15,7 @@
 
 #include <heldout/core/measure.hpp>
 #include <heldout/detail/pointwise_pass.hpp>
+#include <heldout/detail/state_checks.hpp>
 #include <heldout/detail/validate.hpp>
 
 #include <algorithm>
@@ -118,6 +119,14 @@ public:
     void visit_state(F&& f) const {
         f(errors_);
         f(weights_);
+    }
+
+    /// After a load (stream/serialize.hpp): one weight per error, errors finite and >= 0,
+    /// weights finite and >= 0.
+    void check_state() const {
+        detail::check_loaded_size("weights", weights_.size(), errors_.size(), "one per error");
+        detail::check_loaded_nonnegative("errors", std::span<const double>(errors_));
+        detail::check_loaded_nonnegative("weights", std::span<const double>(weights_));
     }
 
 private:

@@ -6,7 +6,7 @@
 //   heldout::measure::multiclass_auc ovr{heldout::measure::multiclass_auc_method::one_vs_rest_weighted};
 //   double o = heldout::evaluate(ovr, truth, heldout::rows(flat, 3), weights);
 //
-// Hand & Till (2001, Machine Learning 45:171-186), methods.md §5: for classes i != j, A(i|j) is
+// Hand & Till (2001, Machine Learning 45:171-186): for classes i != j, A(i|j) is
 // the two-class AUC of class i against class j using column i as the score, over the rows of
 // those two classes only (ties one half); A(i, j) = (A(i|j) + A(j|i)) / 2 and
 // M = 2 / (c (c - 1)) sum_{i<j} A(i, j). M does not depend on the class priors.
@@ -22,6 +22,7 @@
 
 #include <heldout/core/measure.hpp>
 #include <heldout/detail/ranks.hpp>
+#include <heldout/detail/state_checks.hpp>
 
 #include <algorithm>
 #include <cstdint>
@@ -154,6 +155,33 @@ public:
         f(probs_);
         f(labels_);
         f(weights_);
+    }
+
+    /// After a load (stream/serialize.hpp): method known, at least 2 classes when rows are
+    /// held, rows of `classes` probabilities in [0, 1], labels below classes, weights either
+    /// absent or one finite non-negative weight per row.
+    void check_state() const {
+        if (method_ > static_cast<std::uint8_t>(multiclass_auc_method::one_vs_rest_weighted))
+            detail::fail_loaded("method", "unknown code " + std::to_string(method_));
+        const std::size_t n = labels_.size();
+        if (n == 0 && (classes_ != 0 || !probs_.empty() || !weights_.empty()))
+            detail::fail_loaded("classes", "an empty state holds classes, rows or weights");
+        if (n == 0)
+            return;
+        if (classes_ < 2 || classes_ > detail::max_packed_rows)
+            detail::fail_loaded("classes", "is " + std::to_string(classes_) + ", needs at least 2");
+        if (n > detail::max_packed_rows)
+            detail::fail_loaded("labels", "more than 2^31 - 1 rows");
+        const std::size_t k = static_cast<std::size_t>(classes_);
+        if (probs_.size() / k != n || probs_.size() % k != 0)
+            detail::check_loaded_size("probabilities", probs_.size(), n * k, "rows x classes");
+        for (std::size_t i = 0; i < probs_.size(); ++i)
+            if (!(probs_[i] >= 0 && probs_[i] <= 1))
+                detail::fail_loaded("probabilities", "element " + std::to_string(i) + " is not in [0, 1]");
+        detail::check_loaded_labels("labels", std::span<const std::uint32_t>(labels_), k);
+        if (!weights_.empty())
+            detail::check_loaded_size("weights", weights_.size(), n, "one per row");
+        detail::check_loaded_nonnegative("weights", std::span<const double>(weights_));
     }
 
 private:

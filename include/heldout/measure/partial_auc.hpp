@@ -83,6 +83,12 @@ struct eval {
     }
     bool operator==(const eval&) const = default;
     measure::partial_auc measure() const;
+    /// After a load: the range as the measure checks it, standardized 0 or 1.
+    void check_loaded() const {
+        detail::check_loaded_parameters("fpr range", [&] { check_range(who(), fpr_low, fpr_high); });
+        if (standardized > 1)
+            detail::fail_loaded("standardized", "is not 0 or 1");
+    }
     template <class F>
     void visit_state(F&& f) {
         f(fpr_low);

@@ -19,6 +19,7 @@
 
 #include <heldout/core/measure.hpp>
 #include <heldout/detail/pointwise_pass.hpp>
+#include <heldout/detail/state_checks.hpp>
 #include <heldout/detail/sum.hpp>
 #include <heldout/detail/validate.hpp>
 
@@ -114,6 +115,25 @@ public:
         sse_.visit_state(f);
         f(ymin_);
         f(ymax_);
+    }
+
+    /// After a load (stream/serialize.hpp): weight, m2 and SSE finite and >= 0, the mean
+    /// finite, the unit a binary exponent a weight can have, and the truth range either empty
+    /// (+inf, -inf: no row of positive weight) or finite with min <= max.
+    void check_state() const {
+        if (unit_ < -1100 || unit_ > 1100)
+            detail::fail_loaded("unit", "exponent " + std::to_string(unit_) + " outside the range of a double");
+        detail::check_loaded_nonnegative("weight", weight_);
+        detail::check_loaded_finite("mean", mean_);
+        detail::check_loaded_finite("mean low", mean_low_);
+        detail::check_loaded_nonnegative("m2", m2_);
+        sse_.check_loaded("sse");
+        if (sse_.value() < 0)
+            detail::fail_loaded("sse", "is negative");
+        const bool empty =
+            ymin_ == std::numeric_limits<double>::infinity() && ymax_ == -std::numeric_limits<double>::infinity();
+        if (!empty && !(std::isfinite(ymin_) && std::isfinite(ymax_) && ymin_ <= ymax_))
+            detail::fail_loaded("truth range", "not an empty range nor finite min <= max");
     }
 
 private:

@@ -17,6 +17,7 @@
 #pragma once
 
 #include <heldout/core/measure.hpp>
+#include <heldout/detail/state_checks.hpp>
 #include <heldout/detail/validate.hpp>
 
 #include <array>
@@ -114,13 +115,19 @@ public:
     template <class F>
     void visit_state(F&& f) requires offers_v<M, cap::serialisable> {
         f(threshold_);
-        check_threshold(threshold_); // read from bytes: checked as a given one
         inner_.visit_state(f);
     }
     template <class F>
     void visit_state(F&& f) const requires offers_v<M, cap::serialisable> {
         f(threshold_);
         inner_.visit_state(f);
+    }
+
+    /// After a load (stream/serialize.hpp): the threshold checked as a given one, then the
+    /// inner measure's state.
+    void check_state() const requires offers_v<M, cap::serialisable> {
+        detail::check_loaded_parameters("threshold", [&] { check_threshold(threshold_); });
+        inner_.check_state();
     }
 
 private:

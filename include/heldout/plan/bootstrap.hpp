@@ -14,7 +14,7 @@
 //    each row counts as often as its group was drawn; test = rows of groups never drawn.
 // s.counts has size n; s.train lists the rows ascending with their multiplicity (grouped:
 // its length is the drawn groups' total size). The out-of-bag share of a plain replicate
-// has expectation (1 - 1/n)^n -> e^-1 = 0.3679 (methods.md Appendix B); a replicate whose
+// has expectation (1 - 1/n)^n -> e^-1 = 0.3679 (common practice); a replicate whose
 // out-of-bag set is empty is kept (its test span is empty) rather than redrawn, so the
 // sampling stays the textbook one: callers skip it. Needs at least 2 rows (2 groups).
 // s.repeat = b, s.fold = 0.

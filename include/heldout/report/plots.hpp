@@ -1,10 +1,13 @@
-// heldout/report/plots.hpp — the pictures of an evaluation, as SVG text: ROC curves of
-// several models, a calibration (reliability) diagram, per-split values as a strip plot,
-// and a critical-difference diagram.
+// heldout/report/plots.hpp — the pictures of an evaluation, as SVG text: ROC and
+// precision-recall curves of several models, a calibration (reliability) diagram with
+// per-bin counts and intervals, per-split values as a strip plot, and a critical-difference
+// diagram.
 //
 //   using namespace heldout::report;
 //   std::vector<roc_series> roc{{"logistic", fpr_a, tpr_a}, {"5-NN", fpr_b, tpr_b}};
 //   save(roc_plot(roc), "roc.svg");
+//   std::vector<pr_series> pr{pr_series_of("logistic", heldout::pr_points(y, p_a))};
+//   save(pr_plot(pr, 0.15), "pr.svg");                   // 0.15: the share of positives
 //
 //   std::vector<calibration_series> cal{{"logistic", reliability_bins(truth, prob_a, 10)}};
 //   save(calibration_plot(cal), "calibration.svg");
@@ -17,20 +20,25 @@
 //
 // The numbers come from elsewhere (roc_points, the aggregator, the Friedman ranks and the
 // Nemenyi CD); these functions only draw them, except reliability_bins, which bins
-// probabilities with the equal-width bins of Naeini, Cooper & Hauskrecht (2015):
-// B_1 = [0, 1/M], B_m = ((m-1)/M, m/M], edges computed by division so that 0.07 lands in
-// bin 7 of 100 (ceil(0.07 * 100) would say 8).
+// probabilities with heldout::reliability (calibration/reliability.hpp): the equal-width bins
+// of Naeini, Cooper & Hauskrecht (2015), B_1 = [0, 1/M], B_m = ((m-1)/M, m/M], edges computed
+// by division so that 0.07 lands in bin 7 of 100 (ceil(0.07 * 100) would say 8), each with
+// the Wilson interval (Wilson 1927) of its observed rate, drawn as a whisker.
 #pragma once
 
+#include <heldout/calibration/reliability.hpp>
 #include <heldout/core/random.hpp>
 #include <heldout/detail/validate.hpp>
+#include <heldout/estimate/binomial_interval.hpp>
 #include <heldout/report/svg.hpp>
 
 #include <algorithm>
 #include <cmath>
 #include <cstddef>
 #include <cstdint>
+#include <limits>
 #include <numeric>
+#include <optional>
 #include <ranges>
 #include <span>
 #include <string>
@@ -117,6 +125,129 @@ inline std::string roc_plot(std::span<const roc_series> curves, std::string titl
     return fig.str();
 }
 
+/// One model's precision-recall curve: recall and precision, in order of decreasing
+/// threshold (recall growing).
+struct pr_series {
+    std::string name;
+    std::vector<double> recall;
+    std::vector<double> precision;
+};
+
+/// A precision-recall series from the points of heldout::pr_points (members recall and
+/// precision).
+template <class Points>
+pr_series pr_series_of(std::string name, const Points& points) {
+    pr_series s{std::move(name), {}, {}};
+    for (const auto& p : points) {
+        s.recall.push_back(static_cast<double>(p.recall));
+        s.precision.push_back(static_cast<double>(p.precision));
+    }
+    return s;
+}
+
+/// Precision-recall curves on the unit square, drawn as steps: between the recalls of two
+/// neighbouring thresholds the precision of the lower threshold holds, so the area under the
+/// drawn curve is the average precision. Straight lines between the points would overstate
+/// precision (Davis & Goadrich 2006, ICML, section 4). A dashed line marks `prevalence`, the
+/// precision of a model that ranks at random (omit it with a value outside (0, 1)).
+inline std::string pr_plot(std::span<const pr_series> curves, double prevalence = -1,
+                           std::string title = "Precision-recall curves", std::string subtitle = "") {
+    constexpr std::string_view who = "heldout::report::pr_plot";
+    if (curves.empty())
+        detail::fail(who, "curves", "empty input");
+    figure fig({.title = std::move(title),
+                .x = {.label = "recall (sensitivity)", .lo = 0, .hi = 1, .fixed = true},
+                .y = {.label = "precision", .lo = 0, .hi = 1, .fixed = true},
+                .width = 600,
+                .height = 580,
+                .legend = legend_place::bottom_left,
+                .subtitle = std::move(subtitle)});
+    if (prevalence > 0 && prevalence < 1)
+        fig.reference_line(0, prevalence, 1, prevalence);
+    for (std::size_t c = 0; c < curves.size(); ++c) {
+        const auto& s = curves[c];
+        const std::string arg = "curves[" + std::to_string(c) + "]";
+        if (s.recall.size() != s.precision.size())
+            detail::fail(who, arg, "recall and precision differ in size");
+        if (s.recall.empty())
+            detail::fail(who, arg, "no points");
+        detail::check_probabilities(who, arg + ".recall", std::span<const double>(s.recall));
+        detail::check_probabilities(who, arg + ".precision", std::span<const double>(s.precision));
+        std::vector<double> x, y;
+        double last_recall = 0;
+        for (std::size_t i = 0; i < s.recall.size(); ++i) {
+            if (s.recall[i] < last_recall)
+                detail::fail_at(who, arg + ".recall", "decreases (points must go by decreasing threshold)", i);
+            x.push_back(last_recall);
+            y.push_back(s.precision[i]);
+            x.push_back(s.recall[i]);
+            y.push_back(s.precision[i]);
+            last_recall = s.recall[i];
+        }
+        fig.line(s.name, x, y);
+    }
+    return fig.str();
+}
+
+/// One regression model's predictions beside the truth.
+struct scatter_series {
+    std::string name;
+    std::vector<double> observed;
+    std::vector<double> predicted;
+};
+
+/// Predicted against observed values of regression models, one point colour per model, with
+/// the diagonal of perfect prediction. Above `max_points` rows a model is thinned to every
+/// ceil(n / max_points)-th row (in row order, so the picture is reproducible), and the
+/// subtitle says so.
+inline std::string predicted_observed_plot(std::span<const scatter_series> models,
+                                           std::string title = "Predicted against observed", std::string subtitle = "",
+                                           std::size_t max_points = 2000) {
+    constexpr std::string_view who = "heldout::report::predicted_observed_plot";
+    if (models.empty())
+        detail::fail(who, "models", "empty input");
+    if (max_points < 1)
+        detail::fail(who, "max_points", "must be at least 1");
+    double lo = std::numeric_limits<double>::infinity(), hi = -lo;
+    std::size_t step = 1;
+    for (std::size_t m = 0; m < models.size(); ++m) {
+        const auto& s = models[m];
+        const std::string arg = "models[" + std::to_string(m) + "]";
+        if (s.observed.size() != s.predicted.size())
+            detail::fail(who, arg, "observed and predicted differ in size");
+        if (s.observed.empty())
+            detail::fail(who, arg, "no points");
+        detail::check_finite(who, arg + ".observed", std::span<const double>(s.observed));
+        detail::check_finite(who, arg + ".predicted", std::span<const double>(s.predicted));
+        for (std::size_t i = 0; i < s.observed.size(); ++i) {
+            lo = std::min({lo, s.observed[i], s.predicted[i]});
+            hi = std::max({hi, s.observed[i], s.predicted[i]});
+        }
+        step = std::max(step, (s.observed.size() + max_points - 1) / max_points);
+    }
+    if (step > 1)
+        subtitle += (subtitle.empty() ? "" : "; ") + std::string("every ") + std::to_string(step) + "th row shown";
+    figure fig({.title = std::move(title),
+                .x = {.label = "observed"},
+                .y = {.label = "predicted"},
+                .width = 600,
+                .height = 560,
+                .legend = legend_place::top_left,
+                .subtitle = std::move(subtitle)});
+    fig.reference_line(lo, lo, hi, hi);
+    for (std::size_t m = 0; m < models.size(); ++m) {
+        std::vector<double> x, y;
+        for (std::size_t i = 0; i < models[m].observed.size(); i += step) {
+            x.push_back(models[m].observed[i]);
+            y.push_back(models[m].predicted[i]);
+        }
+        fig.points(models[m].name, x, y, palette(m), 2.4);
+        if (x.size() > 200)
+            fig.opacity(0.5);
+    }
+    return fig.str();
+}
+
 /// One non-empty bin of a reliability diagram.
 struct reliability_bin {
     std::size_t index = 0;       ///< bin number 0..M-1
@@ -124,12 +255,17 @@ struct reliability_bin {
     std::size_t count = 0;       ///< predictions in the bin
     double mean_probability = 0; ///< their mean predicted probability
     double observed_rate = 0;    ///< the share of them whose truth is 1
+    double rate_lower = 0;       ///< Wilson interval of observed_rate at the level asked for
+    double rate_upper = 0;       ///<
+    std::size_t positives = 0;   ///< predictions in the bin whose truth is 1
 };
 
-/// The non-empty equal-width bins of predicted probabilities (binary, positive class).
+/// The non-empty equal-width bins of predicted probabilities (binary, positive class), each
+/// with the Wilson interval of its observed rate at `level`.
 /// truth: 0/1 (integral, or floating point 0.0/1.0); probability: values in [0, 1].
 template <value_range T, real_range P>
-std::vector<reliability_bin> reliability_bins(const T& truth, const P& probability, std::size_t bins = 10) {
+std::vector<reliability_bin> reliability_bins(const T& truth, const P& probability, std::size_t bins = 10,
+                                              double level = 0.95) {
     constexpr std::string_view who = "heldout::report::reliability_bins";
     auto t = values_of(truth, who, "truth");
     auto p = values_of(probability, who, "probability");
@@ -137,35 +273,17 @@ std::vector<reliability_bin> reliability_bins(const T& truth, const P& probabili
     detail::check_same_size(who, "probability", t.size(), p.size());
     if (bins < 1 || bins > 100000)
         detail::fail(who, "bins", "must lie in 1..100000");
+    if (!(level > 0 && level < 1))
+        detail::fail(who, "level", "must lie in (0, 1)");
     for (std::size_t i = 0; i < t.size(); ++i)
         if (!(t[i] == 0 || t[i] == 1))
             detail::fail_at(who, "truth", "label outside the classes 0..1", i);
     detail::check_probabilities(who, "probability", p);
-    const double m = static_cast<double>(bins);
-    std::vector<std::size_t> count(bins, 0), positives(bins, 0);
-    std::vector<double> sum(bins, 0.0);
-    for (std::size_t i = 0; i < t.size(); ++i) {
-        const double x = static_cast<double>(p[i]);
-        // First guess from the product, then moved until edge(b) < x <= edge(b+1) holds with
-        // edges computed by division (the product alone misplaces values on edges).
-        std::size_t b = x <= 0 ? 0 : static_cast<std::size_t>(std::max(0.0, std::ceil(x * m) - 1));
-        b = std::min(b, bins - 1);
-        while (b > 0 && x <= static_cast<double>(b) / m)
-            --b;
-        while (b + 1 < bins && x > static_cast<double>(b + 1) / m)
-            ++b;
-        ++count[b];
-        positives[b] += t[i] == 1;
-        sum[b] += x;
-    }
+    // The bins of heldout::reliability (calibration/reliability.hpp), with their Wilson intervals.
     std::vector<reliability_bin> out;
-    for (std::size_t b = 0; b < bins; ++b) {
-        if (count[b] == 0)
-            continue;
-        const double n = static_cast<double>(count[b]);
-        out.push_back({b, static_cast<double>(b) / m, static_cast<double>(b + 1) / m, count[b], sum[b] / n,
-                       static_cast<double>(positives[b]) / n});
-    }
+    for (const calibration_bin& b : heldout::reliability(truth, probability, bins, {.level = level}))
+        out.push_back({b.index, b.left, b.right, b.count, b.mean_predicted, b.observed, b.lower, b.upper,
+                       static_cast<std::size_t>(std::llround(b.observed * static_cast<double>(b.count)))});
     return out;
 }
 
@@ -176,46 +294,32 @@ struct calibration_series {
 };
 
 /// Reliability diagram: observed rate against mean predicted probability, one marked line
-/// per model, with the diagonal of perfect calibration. Bars along the bottom show each
-/// model's share of predictions per bin (the fullest bin reaches 0.2), so that points
-/// resting on few predictions can be told apart.
+/// per model with the Wilson interval of each bin's rate, and the diagonal of perfect
+/// calibration; below it, a histogram of the predictions per bin (bars side by side per
+/// model, on a count axis of their own), so that points resting on few predictions show.
 inline std::string calibration_plot(std::span<const calibration_series> models,
                                     std::string title = "Calibration (reliability diagram)",
-                                    std::string subtitle = "bars at the bottom: share of predictions in each bin") {
+                                    std::string subtitle = "bars: Wilson 95% intervals of the observed rates") {
     constexpr std::string_view who = "heldout::report::calibration_plot";
     if (models.empty())
         detail::fail(who, "models", "empty input");
+    for (std::size_t m = 0; m < models.size(); ++m)
+        if (models[m].bins.empty())
+            detail::fail(who, "models[" + std::to_string(m) + "]", "no bins");
     figure fig({.title = std::move(title),
                 .x = {.label = "mean predicted probability", .lo = 0, .hi = 1, .fixed = true},
                 .y = {.label = "observed frequency of the event", .lo = 0, .hi = 1, .fixed = true},
                 .width = 600,
-                .height = 580,
+                .height = 520,
                 .legend = legend_place::top_left,
                 .subtitle = std::move(subtitle)});
     fig.reference_line(0, 0, 1, 1);
-    double top_share = 0;
+    // a model's error bars sit a little beside its points when several models share a bin
+    const double spread = models.size() > 1 ? 0.006 : 0.0;
     for (std::size_t m = 0; m < models.size(); ++m) {
-        const auto& s = models[m];
-        if (s.bins.empty())
-            detail::fail(who, "models[" + std::to_string(m) + "]", "no bins");
-        std::size_t total = 0;
-        for (const auto& b : s.bins)
-            total += b.count;
-        for (const auto& b : s.bins)
-            top_share = std::max(top_share, static_cast<double>(b.count) / static_cast<double>(total));
-    }
-    const double slot = 0.8 / static_cast<double>(models.size());
-    for (std::size_t m = 0; m < models.size(); ++m) {
-        std::size_t total = 0;
+        const double shift = spread * (static_cast<double>(m) - 0.5 * static_cast<double>(models.size() - 1));
         for (const auto& b : models[m].bins)
-            total += b.count;
-        for (const auto& b : models[m].bins) {
-            const double w = (b.upper - b.lower) * slot;
-            const double x = b.lower + (b.upper - b.lower) * 0.1 + w * static_cast<double>(m) + w / 2;
-            const double h = 0.2 * static_cast<double>(b.count) / static_cast<double>(total) / top_share;
-            // bar width in pixels: the slot on a plot about 540 px wide, less a gap
-            fig.reference_line(x, 0, x, h, palette(m), "", std::max(1.0, w * 540 - 1));
-        }
+            fig.error_bar(b.mean_probability + shift, b.rate_lower, b.rate_upper, palette(m), 1.2);
     }
     for (std::size_t m = 0; m < models.size(); ++m) {
         std::vector<double> x, y;
@@ -225,7 +329,26 @@ inline std::string calibration_plot(std::span<const calibration_series> models,
         }
         fig.line_points(models[m].name, x, y, palette(m));
     }
-    return fig.str();
+    // the histogram: a count axis from 0 to the fullest bin, bars inside each bin's edges
+    std::size_t top = 0;
+    for (const auto& s : models)
+        for (const auto& b : s.bins)
+            top = std::max(top, b.count);
+    figure hist({.title = "",
+                 .x = {.label = "predicted probability (bin edges)", .lo = 0, .hi = 1, .fixed = true},
+                 .y = {.label = "predictions", .lo = 0, .hi = static_cast<double>(top)},
+                 .width = 600,
+                 .height = 190,
+                 .grid = true});
+    const double slot = 0.8 / static_cast<double>(models.size());
+    for (std::size_t m = 0; m < models.size(); ++m)
+        for (const auto& b : models[m].bins) {
+            const double w = (b.upper - b.lower) * slot;
+            const double x0 = b.lower + (b.upper - b.lower) * 0.1 + w * static_cast<double>(m);
+            hist.bar(x0, x0 + w, 0, static_cast<double>(b.count), palette(m), 0.8);
+        }
+    const std::string parts[] = {fig.str(), hist.str()};
+    return stack(parts);
 }
 
 /// One group of a strip plot: its name and its values (e.g. one model's error per fold).
@@ -238,17 +361,24 @@ struct strip_options {
     std::string title = "Values per split";
     std::string value_label = "value";
     std::string subtitle{};
-    bool paired = false;    ///< join value i of neighbouring groups (the same split)
-    std::uint64_t seed = 1; ///< horizontal jitter (heldout::rng), so the picture is reproducible
+    bool paired = false;               ///< value i of every group comes from the same split
+    std::size_t paired_lines_max = 20; ///< join paired values by lines only up to this many per group
+    std::optional<double> reference{}; ///< a dashed horizontal line (e.g. 0 for differences)
+    std::uint64_t seed = 1;            ///< horizontal jitter (heldout::rng), so the picture is reproducible
 };
 
-/// A strip plot: each group's values as jittered points over its name, with a bar at the
-/// group's mean. With paired = true, thin grey lines join value i of neighbouring groups.
+/// A strip plot: each group's values as jittered points over its name, a box from the
+/// first to the third quartile (linear interpolation between order statistics, Hyndman &
+/// Fan 1996 type 7) from 5 values on, and a bar at the group's mean. With paired = true and
+/// at most paired_lines_max values per group, thin grey lines join value i of neighbouring
+/// groups; with more (100 splits) they would only tangle, so the points are drawn smaller
+/// and translucent instead, and the pairing is left to a plot of the differences.
 inline std::string strip_plot(std::span<const strip_group> groups, const strip_options& o = {}) {
     constexpr std::string_view who = "heldout::report::strip_plot";
     if (groups.empty())
         detail::fail(who, "groups", "empty input");
     axis xa{.label = ""};
+    std::size_t most = 0;
     for (std::size_t g = 0; g < groups.size(); ++g) {
         if (groups[g].values.empty())
             detail::fail(who, "groups[" + std::to_string(g) + "]", "no values");
@@ -257,9 +387,16 @@ inline std::string strip_plot(std::span<const strip_group> groups, const strip_o
         if (o.paired && groups[g].values.size() != groups[0].values.size())
             detail::fail(who, "groups[" + std::to_string(g) + "]", "paired groups must hold the same number of values");
         xa.categories.emplace_back(static_cast<double>(g + 1), groups[g].name);
+        most = std::max(most, groups[g].values.size());
     }
+    if (o.reference && !std::isfinite(*o.reference))
+        detail::fail(who, "reference", "not finite");
     // wide enough for the groups and for the title lines (estimated text widths)
-    const double width = std::max({420.0, 150.0 * static_cast<double>(groups.size()) + 140,
+    double label_w = 0;
+    for (const auto& g : groups)
+        label_w = std::max(label_w, text_width(g.name, 11));
+    const double per_group = std::max(150.0, label_w + 24);
+    const double width = std::max({420.0, per_group * static_cast<double>(groups.size()) + 140,
                                    text_width(o.title, 16) + 40, text_width(o.subtitle, 12) + 40});
     figure fig({.title = o.title,
                 .x = std::move(xa),
@@ -268,18 +405,37 @@ inline std::string strip_plot(std::span<const strip_group> groups, const strip_o
                 .height = 480,
                 .legend = legend_place::top_right,
                 .subtitle = o.subtitle});
+    if (o.reference)
+        fig.reference_line(0.5, *o.reference, static_cast<double>(groups.size()) + 0.5, *o.reference);
+    const bool many = most > 30;
     rng jitter(o.seed);
     std::vector<std::vector<double>> xs(groups.size());
     for (std::size_t g = 0; g < groups.size(); ++g)
         for (std::size_t i = 0; i < groups[g].values.size(); ++i)
-            xs[g].push_back(static_cast<double>(g + 1) + (jitter.uniform() - 0.5) * 0.3);
-    if (o.paired)
+            xs[g].push_back(static_cast<double>(g + 1) + (jitter.uniform() - 0.5) * (many ? 0.4 : 0.3));
+    for (std::size_t g = 0; g < groups.size(); ++g) { // boxes first: points go on top
+        std::vector<double> v = groups[g].values;
+        if (v.size() < 5)
+            continue;
+        std::sort(v.begin(), v.end());
+        auto quantile = [&](double q) {
+            const double h = (static_cast<double>(v.size()) - 1) * q;
+            const auto lo = static_cast<std::size_t>(std::floor(h));
+            const std::size_t hi = std::min(lo + 1, v.size() - 1);
+            return v[lo] + (h - static_cast<double>(lo)) * (v[hi] - v[lo]);
+        };
+        const double c = static_cast<double>(g + 1);
+        fig.bar(c - 0.28, c + 0.28, quantile(0.25), quantile(0.75), palette(g), 0.18);
+    }
+    if (o.paired && most <= o.paired_lines_max)
         for (std::size_t g = 0; g + 1 < groups.size(); ++g)
             for (std::size_t i = 0; i < groups[g].values.size(); ++i)
                 fig.reference_line(xs[g][i], groups[g].values[i], xs[g + 1][i], groups[g + 1].values[i], "#cccccc", "");
     for (std::size_t g = 0; g < groups.size(); ++g) {
         const auto& v = groups[g].values;
-        fig.points("", xs[g], v, palette(g), 3.2);
+        fig.points("", xs[g], v, palette(g), many ? 2.2 : 3.2);
+        if (many)
+            fig.opacity(0.55);
         const double mean = std::accumulate(v.begin(), v.end(), 0.0) / static_cast<double>(v.size());
         fig.segment(static_cast<double>(g + 1) - 0.3, static_cast<double>(g + 1) + 0.3, mean, "#222222", 2.5);
     }

@@ -7,7 +7,11 @@
 //   fig.line("model A", xs, ys);                       // a polyline series (legend entry)
 //   fig.points("model B", xs, zs);                     // a point series
 //   fig.reference_line(0, 0, 1, 1);                    // a dashed grey guide
+//   fig.bar(0.0, 0.1, 0, 42, "#0072B2");               // a filled box in data coordinates
+//   fig.error_bar(0.5, 0.41, 0.62, "#0072B2");         // a vertical interval with caps
 //   heldout::report::save(fig.str(), "errors.svg");    // a complete SVG document
+//   std::string both = heldout::report::stack({top.str(), bottom.str()});   // one above the other
+//   std::string html_part = heldout::report::inline_svg(both);              // for an HTML page
 //
 //   auto t = heldout::report::nice_ticks(0.03, 0.91);  // 0.2, 0.4, 0.6, 0.8 (step 0.2)
 //
@@ -326,6 +330,74 @@ inline void save(const std::string& text, const std::string& path) {
         throw std::runtime_error("heldout::report::save: writing '" + path + "' failed");
 }
 
+/// An SVG document without its XML declaration, to be placed inside an HTML page (where a
+/// `<?xml ...?>` line is not allowed) or inside another SVG document.
+inline std::string inline_svg(std::string_view document) {
+    if (document.substr(0, 5) == "<?xml") {
+        const auto end = document.find("?>");
+        if (end == std::string_view::npos)
+            detail::fail("heldout::report::inline_svg", "document", "an XML declaration that is not closed");
+        document.remove_prefix(end + 2);
+        while (!document.empty() && (document.front() == '\n' || document.front() == '\r'))
+            document.remove_prefix(1);
+    }
+    return std::string(document);
+}
+
+/// SVG documents (made by svg::str or figure::str) one above the other in one document, as
+/// nested <svg> elements, left-aligned; the width is the widest one's.
+inline std::string stack(std::span<const std::string> documents) {
+    constexpr std::string_view who = "heldout::report::stack";
+    if (documents.empty())
+        detail::fail(who, "documents", "empty input");
+    auto attribute = [&](std::string_view doc, std::string_view name, std::size_t i) {
+        const auto open = doc.find("<svg ");
+        const std::string key = " " + std::string(name) + "=\"";
+        const auto at = open == std::string_view::npos ? open : doc.find(key, open);
+        const auto end = at == std::string_view::npos ? at : doc.find('"', at + key.size());
+        if (end != std::string_view::npos) {
+            // written by number(v, 2): digits, a point, digits (no floating from_chars in libc++ 14)
+            double v = 0, scale = 0;
+            bool ok = end > at + key.size();
+            for (std::size_t k = at + key.size(); ok && k < end; ++k) {
+                const char ch = doc[k];
+                if (ch == '.' && scale == 0)
+                    scale = 1;
+                else if (ch >= '0' && ch <= '9') {
+                    if (scale > 0)
+                        v += (ch - '0') * (scale /= 10);
+                    else
+                        v = 10 * v + (ch - '0');
+                } else
+                    ok = false;
+            }
+            if (ok && v > 0)
+                return v;
+        }
+        detail::fail_at(who, "documents", "not an SVG document with a " + std::string(name) + " (svg::str)", i);
+    };
+    double width = 0, height = 0;
+    std::vector<double> heights;
+    for (std::size_t i = 0; i < documents.size(); ++i) {
+        width = std::max(width, attribute(documents[i], "width", i));
+        heights.push_back(attribute(documents[i], "height", i));
+        height += heights.back();
+    }
+    std::string out = "<?xml version=\"1.0\" encoding=\"UTF-8\"?>\n";
+    out += "<svg xmlns=\"http://www.w3.org/2000/svg\" version=\"1.1\" width=\"" + number(width, 2) + "\" height=\"" +
+           number(height, 2) + "\" viewBox=\"0 0 " + number(width, 2) + " " + number(height, 2) + "\">\n";
+    double y = 0;
+    for (std::size_t i = 0; i < documents.size(); ++i) {
+        std::string inner = inline_svg(documents[i]);
+        // the nested document keeps its own size and viewBox; only its position is added
+        inner.replace(0, 4, "<svg x=\"0\" y=\"" + number(y, 2) + "\"");
+        out += inner;
+        y += heights[i];
+    }
+    out += "</svg>\n";
+    return out;
+}
+
 /// The Okabe–Ito colour-blind-safe palette (Okabe & Ito 2008, "Color universal design"),
 /// black last; series i takes colour i modulo 8.
 inline const std::string& palette(std::size_t i) {
@@ -400,6 +472,32 @@ public:
         return *this;
     }
 
+    /// A filled box from (x0, y0) to (x1, y1) in data coordinates, without a legend entry
+    /// (a histogram bar; its pixel size follows the axes, whatever the figure's size).
+    figure& bar(double x0, double x1, double y0, double y1, std::string colour, double opacity = 0.75) {
+        const double xs[] = {std::min(x0, x1), std::max(x0, x1)}, ys[] = {std::min(y0, y1), std::max(y0, y1)};
+        add(kind::bar, "", xs, ys, std::move(colour), "", 0.0);
+        series_.back().opacity = opacity;
+        return *this;
+    }
+
+    /// A vertical interval from lo to hi at x, with short caps, without a legend entry.
+    figure& error_bar(double x, double lo, double hi, std::string colour, double width = 1.4) {
+        const double xs[] = {x, x}, ys[] = {std::min(lo, hi), std::max(lo, hi)};
+        add(kind::error_bar, "", xs, ys, std::move(colour), "", width);
+        return *this;
+    }
+
+    /// Sets the opacity of the series added last (e.g. many overlapping points); 0 < a <= 1.
+    figure& opacity(double a) {
+        if (series_.empty())
+            detail::fail("heldout::report::figure::opacity", "", "no series added yet");
+        if (!(a > 0 && a <= 1))
+            detail::fail("heldout::report::figure::opacity", "a", "must lie in (0, 1]");
+        series_.back().opacity = a;
+        return *this;
+    }
+
     std::size_t series_count() const noexcept { return series_.size(); }
 
     /// The SVG document.
@@ -456,12 +554,29 @@ public:
             case kind::line:
             case kind::guide:
             case kind::segment:
-                doc.polyline(xs, ys, {.stroke = s.colour, .stroke_width = s.size, .dash = s.dash});
+                doc.polyline(xs, ys,
+                             {.stroke = s.colour, .stroke_width = s.size, .dash = s.dash, .opacity = s.opacity});
                 break;
-            case kind::points:
+            case kind::bar: // ys[1] is the top (the larger value) in pixels: the smaller coordinate
+                doc.rect(xs[0], ys[1], xs[1] - xs[0], ys[0] - ys[1], {.fill = s.colour, .opacity = s.opacity});
+                break;
+            case kind::error_bar: {
+                const style st{.stroke = s.colour, .stroke_width = s.size, .opacity = s.opacity};
+                doc.line(xs[0], ys[0], xs[0], ys[1], st);
+                doc.line(xs[0] - 4, ys[0], xs[0] + 4, ys[0], st);
+                doc.line(xs[0] - 4, ys[1], xs[0] + 4, ys[1], st);
+                break;
+            }
+            case kind::points: {
+                const double edge = s.opacity < 1 ? 0.0 : 0.8; // faint points: no white rim
                 for (std::size_t i = 0; i < xs.size(); ++i)
-                    doc.circle(xs[i], ys[i], s.size, {.stroke = "#ffffff", .fill = s.colour, .stroke_width = 0.8});
+                    doc.circle(xs[i], ys[i], s.size,
+                               {.stroke = edge > 0 ? "#ffffff" : "none",
+                                .fill = s.colour,
+                                .stroke_width = edge,
+                                .opacity = s.opacity});
                 break;
+            }
             case kind::line_points:
                 doc.polyline(xs, ys, {.stroke = s.colour, .stroke_width = s.size});
                 for (std::size_t i = 0; i < xs.size(); ++i)
@@ -474,13 +589,14 @@ public:
     }
 
 private:
-    enum class kind { line, points, line_points, guide, segment };
+    enum class kind { line, points, line_points, guide, segment, bar, error_bar };
     struct series {
         kind k;
         std::string name;
         std::vector<double> x, y;
         std::string colour, dash;
         double size;
+        double opacity = 1.0;
     };
     struct axis_layout {
         double lo, hi;
@@ -503,7 +619,7 @@ private:
         if (colour.empty()) {
             std::size_t named = 0;
             for (const auto& s : series_)
-                named += !s.name.empty() && s.k != kind::guide;
+                named += !s.name.empty() && s.k != kind::guide && s.k != kind::bar && s.k != kind::error_bar;
             colour = palette(named);
         }
         series_.push_back({k,

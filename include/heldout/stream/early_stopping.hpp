@@ -8,7 +8,8 @@
 //   restore(stop.best_epoch());                      // 0-based; stop.best_value() is its value
 //
 // An epoch improves when its value beats the best so far by more than min_improvement in the
-// measure's direction (lower or higher is better). update() returns true once `patience`
+// measure's direction (lower or higher is better; for a measure with an ideal value, such as
+// the calibration slope, closer to the ideal). update() returns true once `patience`
 // consecutive epochs have not improved, and keeps returning true after that.
 #pragma once
 
@@ -31,7 +32,10 @@ class early_stopping {
 public:
     /// Direction taken from the measure.
     template <outer_measure M>
-    early_stopping(const M&, early_stopping_options options = {}) : early_stopping(M::better, options) {}
+    early_stopping(const M&, early_stopping_options options = {}) : early_stopping(M::better, options) {
+        if constexpr (has_ideal_v<M>)
+            ideal_ = ideal_value_v<M>;
+    }
 
     explicit early_stopping(direction better, early_stopping_options options = {})
         : better_(better), options_(options) {
@@ -76,6 +80,8 @@ public:
 
 private:
     bool improves(double v) const noexcept {
+        if (better_ == direction::toward_ideal)
+            return distance_from_ideal(v, ideal_) < distance_from_ideal(best_value_, ideal_) - options_.min_improvement;
         return better_ == direction::lower_is_better ? v < best_value_ - options_.min_improvement
                                                      : v > best_value_ + options_.min_improvement;
     }
@@ -85,6 +91,7 @@ private:
     }
 
     direction better_;
+    double ideal_ = 0.0; // toward_ideal: the measure's ideal value (0 when given a direction alone)
     early_stopping_options options_;
     double best_value_ = 0.0;
     std::size_t best_epoch_ = 0;

@@ -7,28 +7,41 @@
 //   auto back = heldout::deserialize<decltype(acc)>(bytes);           // on another machine
 //   total.merge(back);
 //
-// Any accumulator with visit_state(f) (core/measure.hpp convention) works. Layout, version 1
+//   auto typed = heldout::deserialize(bytes, heldout::measure::auc{}); // refuses other measures
+//
+// Any accumulator with visit_state(f) (core/measure.hpp convention) works. Layout, version 2
 // (all integers little-endian, whatever the host):
 //
 //   offset 0   4 bytes  magic "HDST"
-//          4   u16      format version (1)
+//          4   u16      format version (2)
 //          6   u16      reserved (0)
-//          8   u32      S = length of the schema string
-//         12   S bytes  schema: one code per visited field, in visit order:
+//          8   u32      K = length of the identity key
+//         12   K bytes  key: the measure's `key` (cap::serialisable) for an accumulator with
+//                       measure(); empty for internal states (detail sums, test structs)
+//     12 + K   u32      S = length of the schema string
+//     16 + K   S bytes  schema: one code per visited field, in visit order:
 //                         'b' bool (1 byte)            'i' signed integer (8 bytes, two's complement)
 //                         'u' unsigned integer (8)     'f' float (4, IEEE 754 binary32)
 //                         'd' double (8, binary64)     's' string (u64 length + bytes)
 //                         'V' + code: vector (u64 count + elements)
 //                         'M' Eigen matrix of double (u64 rows, u64 cols, row-major binary64)
 //                         '{' ... '}': a nested object's own fields
-//     12 + S   payload  the fields in schema order
+// 16 + K + S   payload  the fields in schema order (the measure's parameters come first)
 //        end   u64      FNV-1a 64-bit hash of every byte before it
 //
-// deserialize() checks magic, version, schema (so bytes of a different accumulator type are
-// refused), lengths and the hash, and throws heldout::input_error naming what is wrong.
+// deserialize<A>() checks magic, version, key (bytes of an MSE state are refused by an MAE
+// accumulator although their fields look alike), schema, lengths and the hash, then the
+// accumulator's own check_state(): every invariant of the loaded fields (labels below the
+// number of classes, row lengths, weights as long as values, non-negative counts, finite sums,
+// parameters in range), so a state with a right checksum but inconsistent content is an
+// input_error naming the field, never undefined behaviour. deserialize(bytes, m) also refuses
+// bytes whose parameters differ from m's (heldout::same_measure: type and parameters).
+// Version 1 (no key) is refused: re-serialise with this version.
 #pragma once
 
 #include <heldout/core/error.hpp>
+#include <heldout/core/measure.hpp>
+#include <heldout/core/traits.hpp>
 
 #include <bit>
 #include <cstddef>
@@ -212,7 +225,10 @@ public:
             expect('M');
             const std::uint64_t r = get_u64();
             const std::uint64_t c = get_u64();
-            if (c != 0 && r > (payload_.size() - at_) / 8 / c)
+            // Each dimension alone is bounded too: a 2^64 x 0 matrix holds no byte but its
+            // loops would never end.
+            const std::uint64_t left = payload_.size() - at_;
+            if (r > left || c > left || (c != 0 && r > left / 8 / c))
                 truncated();
             v.resize(static_cast<std::ptrdiff_t>(r), static_cast<std::ptrdiff_t>(c));
             for (std::ptrdiff_t i = 0; i < v.rows(); ++i)
@@ -293,7 +309,36 @@ private:
     std::size_t at_ = 0;
 };
 
-inline constexpr std::uint16_t state_format_version = 1;
+inline constexpr std::uint16_t state_format_version = 2;
+
+/// The identity key written for accumulator A: its measure's `key`, or empty for states
+/// without a measure (internal sums).
+template <class A>
+constexpr std::string_view state_key() {
+    if constexpr (requires(const A& a) {
+                      { std::remove_cvref_t<decltype(a.measure())>::key } -> std::convertible_to<std::string_view>;
+                  })
+        return std::remove_cvref_t<decltype(std::declval<const A&>().measure())>::key;
+    else
+        return {};
+}
+
+inline void put_u32(std::vector<std::byte>& out, std::uint32_t x) {
+    for (int k = 0; k < 4; ++k)
+        out.push_back(static_cast<std::byte>((x >> (8 * k)) & 0xFF));
+}
+inline std::uint32_t get_u32(std::span<const std::byte> b, std::size_t at) {
+    std::uint32_t x = 0;
+    for (int k = 0; k < 4; ++k)
+        x |= static_cast<std::uint32_t>(b[at + static_cast<std::size_t>(k)]) << (8 * k);
+    return x;
+}
+
+/// A state check that an accumulator runs once every field is read (cap::serialisable).
+template <class A>
+concept checks_state = requires(const A& a) {
+    a.check_state();
+};
 
 } // namespace detail
 
@@ -302,17 +347,19 @@ template <class A>
 requires detail::visitable_state<A> std::vector<std::byte> serialize(const A& acc) {
     detail::state_writer w;
     acc.visit_state(w);
+    constexpr std::string_view key = detail::state_key<A>();
     std::vector<std::byte> out;
-    out.reserve(16 + w.schema.size() + w.payload.size() + 8);
+    out.reserve(20 + key.size() + w.schema.size() + w.payload.size() + 8);
     for (char c : std::string_view("HDST"))
         out.push_back(static_cast<std::byte>(c));
     out.push_back(static_cast<std::byte>(detail::state_format_version & 0xFF));
     out.push_back(static_cast<std::byte>(detail::state_format_version >> 8));
     out.push_back(std::byte{0});
     out.push_back(std::byte{0});
-    const auto s = static_cast<std::uint32_t>(w.schema.size());
-    for (int k = 0; k < 4; ++k)
-        out.push_back(static_cast<std::byte>((s >> (8 * k)) & 0xFF));
+    detail::put_u32(out, static_cast<std::uint32_t>(key.size()));
+    for (char c : key)
+        out.push_back(static_cast<std::byte>(c));
+    detail::put_u32(out, static_cast<std::uint32_t>(w.schema.size()));
     for (char c : w.schema)
         out.push_back(static_cast<std::byte>(c));
     out.insert(out.end(), w.payload.begin(), w.payload.end());
@@ -326,7 +373,7 @@ requires detail::visitable_state<A> std::vector<std::byte> serialize(const A& ac
 template <class A>
 requires detail::visitable_state<A> && std::default_initializable<A> A deserialize(std::span<const std::byte> bytes) {
     constexpr std::string_view who = "heldout::deserialize";
-    if (bytes.size() < 20)
+    if (bytes.size() < 24)
         detail::fail(who, "bytes", "too short to hold a state (" + std::to_string(bytes.size()) + " bytes)");
     if (std::memcmp(bytes.data(), "HDST", 4) != 0)
         detail::fail(who, "bytes", "not a heldout state (bad magic)");
@@ -340,16 +387,25 @@ requires detail::visitable_state<A> && std::default_initializable<A> A deseriali
         h |= static_cast<std::uint64_t>(bytes[bytes.size() - 8 + static_cast<std::size_t>(k)]) << (8 * k);
     if (h != detail::fnv1a(body))
         detail::fail(who, "bytes", "checksum mismatch (corrupted or truncated state)");
-    std::uint32_t s = 0;
-    for (int k = 0; k < 4; ++k)
-        s |= static_cast<std::uint32_t>(bytes[8 + static_cast<std::size_t>(k)]) << (8 * k);
-    if (s > body.size() - 12)
+    const std::uint32_t k = detail::get_u32(body, 8);
+    if (k > body.size() - 16)
+        detail::fail(who, "bytes", "key length past the end");
+    const std::string_view key(reinterpret_cast<const char*>(body.data() + 12), k);
+    constexpr std::string_view want = detail::state_key<A>();
+    if (key != want)
+        detail::fail(who, "bytes",
+                     "the bytes hold the state of '" + std::string(key.empty() ? "(no measure)" : key) + "', not of '" +
+                         std::string(want.empty() ? "(no measure)" : want) + "'");
+    const std::uint32_t s = detail::get_u32(body, 12 + std::size_t{k});
+    if (s > body.size() - 16 - k)
         detail::fail(who, "bytes", "schema length past the end");
-    const std::string_view schema(reinterpret_cast<const char*>(body.data() + 12), s);
-    detail::state_reader r(schema, body.subspan(12 + s));
+    const std::string_view schema(reinterpret_cast<const char*>(body.data() + 16 + k), s);
+    detail::state_reader r(schema, body.subspan(16 + std::size_t{k} + s));
     A acc{};
     acc.visit_state(r);
     r.finish();
+    if constexpr (detail::checks_state<A>)
+        acc.check_state();
     return acc;
 }
 
@@ -357,6 +413,26 @@ requires detail::visitable_state<A> && std::default_initializable<A> A deseriali
 template <class A>
 A deserialize(const std::vector<std::byte>& bytes) {
     return deserialize<A>(std::span<const std::byte>(bytes));
+}
+
+/// Typed load: rebuilds the accumulator of measure m from serialize()'s bytes and refuses
+/// bytes of another measure, or of the same measure with other parameters (e.g. a
+/// calibration error with 10 bins when m has 15): the identity is type and parameters.
+template <outer_measure M>
+requires detail::has_serialisable_parts<M> accumulator_t<M> deserialize(std::span<const std::byte> bytes, const M& m) {
+    auto acc = deserialize<accumulator_t<M>>(bytes);
+    if (!same_measure(acc.measure(), m))
+        detail::fail("heldout::deserialize", "bytes",
+                     "the bytes hold the state of " + acc.measure().name() + ", but the expected measure is " +
+                         m.name());
+    return acc;
+}
+
+/// Typed load from a byte vector.
+template <outer_measure M>
+requires detail::has_serialisable_parts<M> accumulator_t<M> deserialize(const std::vector<std::byte>& bytes,
+                                                                        const M& m) {
+    return deserialize(std::span<const std::byte>(bytes), m);
 }
 
 HELDOUT_NAMESPACE_END

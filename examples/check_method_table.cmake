@@ -1,0 +1,22 @@
+# ctest: the method table in docs/intervals.md equals what examples/method_table prints from
+# estimate/methods.hpp. Run with -DPROGRAM=<example_method_table> -DDOC=<docs/intervals.md>.
+execute_process(COMMAND ${PROGRAM} OUTPUT_VARIABLE printed RESULT_VARIABLE rc)
+if(NOT rc EQUAL 0)
+    message(FATAL_ERROR "example_method_table failed (${rc})")
+endif()
+file(READ ${DOC} doc)
+set(begin "<!-- method table: printed by examples/method_table from estimate/methods.hpp; do not edit -->\n")
+set(end "<!-- end of method table -->")
+string(FIND "${doc}" "${begin}" b)
+string(FIND "${doc}" "${end}" e)
+if(b EQUAL -1 OR e EQUAL -1)
+    message(FATAL_ERROR "${DOC} has no method-table markers")
+endif()
+string(LENGTH "${begin}" bl)
+math(EXPR start "${b} + ${bl}")
+math(EXPR len "${e} - ${start}")
+string(SUBSTRING "${doc}" ${start} ${len} section)
+if(NOT section STREQUAL printed)
+    message(FATAL_ERROR "docs/intervals.md's method table differs from estimate/methods.hpp: regenerate it with "
+                        "example_method_table and paste it between the markers")
+endif()
