@@ -116,7 +116,7 @@ enum class method_id : unsigned char {
 };
 
 /// The interval methods, indexed by method_id (automatic first).
-inline constexpr std::array<method_info, 13> methods{{
+inline constexpr std::array<method_info, 14> methods{{
     {"automatic", "automatic", "", "the valid default for what was recorded (see the rules in docs/intervals.md)",
      need::none, true},
     {"t", "Student t", "Student (1908), Biometrika 6:1-25",
