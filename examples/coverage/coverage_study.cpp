@@ -2,31 +2,39 @@
 // and how often does each comparison test reject a true null, on simulated processes where
 // the truth is known? The tables of docs/intervals.md and the coverage claims of README.md
 // come from this program's full run; a reduced run is a ctest (examples.coverage_study) that
-// checks every row against the recorded full-size value within its Monte-Carlo band, so the
-// study cannot rot and a change that moves a coverage fails.
+// checks every row against the recorded full-run rate within a band of its own Monte-Carlo
+// error, so the study cannot rot and a change that moves a coverage fails.
 //
-//   example_coverage_study                       # full run: 2000 replications, 2 threads, seed 20261201
-//   example_coverage_study 2000 2 20261201       # replications, threads, seed
-//   example_coverage_study --quick               # 300 replications, checked against the recorded values
-//   example_coverage_study --expected            # full run, then print the recorded-values table (C++)
+//   example_coverage_study --record examples/coverage   # THE full run (2000 replications, 2
+//        # threads, seed 20261201); writes coverage_recorded.inc and coverage_full_run.md there
+//   example_coverage_study --quick                # 300 replications, checked against coverage_recorded.inc
+//   example_coverage_study 500 2 7                # replications, threads, seed (prints the tables only)
 //
+// Replication r draws its data and its plan seeds from (seed, r) alone, so the quick run is
+// the first 300 replications of the full run and any thread count gives the same table.
 // Processes (all data simulated here; Gaussian designs x ~ N(0, I_d), noise N(0, 1)):
 //  * Least squares without intercept on the correct model y = x'beta + e. For x ~ N(0, I) the
 //    error of fitted coefficients b is Err(b) = 1 + |b - beta|^2 (the fitted model's error,
 //    Err_XY), and over training sets of size m its mean is E Err(m) = 1 + p/(m - p - 1) (the
 //    inverse-Wishart mean): the estimand of the corrected resampled t (Nadeau & Bengio 2003).
 //    Stable: p = 5 with n = 100 and n = 500. Unstable: p = 20 with n = 50 (p/n = 0.4).
-//  * 1-nearest-neighbour classification (unstable): x ~ N(0, I_2), P(y = 1 | x) =
-//    1/(1 + exp(-2 x_1)); E Err(90) by Monte Carlo (2000 training sets x 500 test points,
-//    conditional error at each test point exact), its own MC error printed.
+//  * Classifiers on x ~ N(0, I_2), P(y = 1 | x) = logistic(a + w'x): 1-nearest neighbour
+//    (unstable), logistic regression with intercept (stable), discrete AdaBoost of 100 stumps
+//    (unstable); balanced (w = (2, 0), a = 0) and 5 % positives (w = (1, 1), a = -3.75).
+//    E Err(n_train) by Monte Carlo (2000 training sets x 500 test points, the conditional
+//    error exact at each point), its MC error printed.
 //  * Comparison tests under a true null: two learners that are equally good by symmetry
-//    (least squares or 1-NN on (x1, x3) against (x2, x4), y symmetric in x1 and x2; least
-//    squares on features 1-20 against 21-40 of 40 equal ones). Null = equal expected error.
+//    (least squares, 1-NN, logistic regression or stumps on (x1, x3) against (x2, x4), y
+//    symmetric in x1 and x2; least squares on features 1-20 against 21-40 of 40 equal ones),
+//    on 10 x 10-fold CV and on 5x2cv. Null = equal expected error.
 //  * AUC: a fixed score, positives N(delta, 1), negatives N(0, 1): AUC = Phi(delta/sqrt 2);
 //    paired tests: two scores x + e_A, x + e_B with equal noise, so equal AUCs.
-//  * Nested CV (Bates, Hastie & Tibshirani 2023): least squares, 10 folds, 50 repetitions;
-//    coverage of Err_XY (the model fitted on all n rows) and of E Err(n).
-//  * One test set (fixed rules): the logistic grid process of the first study (exact truths).
+//  * Nested CV (Bates, Hastie & Tibshirani 2023): least squares (stable and unstable) and
+//    1-nearest neighbour (0-1 loss), 10 folds, 50 repetitions; coverage of Err_XY (the model
+//    fitted on all n rows) and of E Err(n).
+//  * One test set (fixed rules): a logistic process on a 21-point grid (exact truths), balanced
+//    and with 5 % positives; McNemar and the paired bootstrap on two fixed rules equally good
+//    by symmetry.
 // Every interval and test goes through heldout's public entry points (evaluate_splits,
 // aggregator::estimate, compare, nested_cv_interval), so the dispatch is what is measured.
 // "no interval": the method refused with undefined_error (e.g. DeLong at AUC = 1); the rate
@@ -35,8 +43,10 @@
 #include <heldout/estimate/evaluate_splits.hpp>
 #include <heldout/estimate/nested_cv.hpp>
 #include <heldout/loss/squared.hpp>
+#include <heldout/loss/zero_one.hpp>
 #include <heldout/measure/auc.hpp>
 #include <heldout/measure/classification_error.hpp>
+#include <heldout/plan/five_by_two.hpp>
 #include <heldout/plan/holdout.hpp>
 #include <heldout/plan/kfold.hpp>
 #include <heldout/plan/repeated_kfold.hpp>
@@ -116,30 +126,35 @@ double conditional_error(const Eigen::VectorXd& b) {
 // ---- logistic process on a 21-point grid
 constexpr int grid = 21;
 double grid_x(int k) { return -2.0 + 0.2 * k; }
-double prob1(double x) { return 1.0 / (1.0 + std::exp(-(0.5 + 1.5 * x))); }
+/// P(y = 1 | x) on the grid: logistic(a + 1.5 x); a = 0.5 balanced (48 % positives), a = -4.1
+/// imbalanced (5 % positives).
+double prob_at(double a, double x) { return 1.0 / (1.0 + std::exp(-(a + 1.5 * x))); }
+double prob1(double x) { return prob_at(0.5, x); }
 
-double true_error() {
+/// Exact error rate of the rule "predict 1 when x > cut" on the grid process with intercept a.
+double true_error(double a = 0.5, double cut = 0.0) {
     double e = 0;
     for (int k = 0; k < grid; ++k) {
-        const double x = grid_x(k), q = prob1(x);
-        e += (x > 0 ? 1.0 - q : q) / grid;
+        const double x = grid_x(k), q = prob_at(a, x);
+        e += (x > cut ? 1.0 - q : q) / grid;
     }
     return e;
 }
 
-double true_auc() {
+/// Exact AUC of the score x on the grid process with intercept a (ties count 1/2).
+double true_auc(double a = 0.5) {
     double p1 = 0, p0 = 0;
     for (int k = 0; k < grid; ++k) {
-        p1 += prob1(grid_x(k)) / grid;
-        p0 += (1 - prob1(grid_x(k))) / grid;
+        p1 += prob_at(a, grid_x(k)) / grid;
+        p0 += (1 - prob_at(a, grid_x(k))) / grid;
     }
-    double a = 0;
+    double r = 0;
     for (int i = 0; i < grid; ++i)
         for (int j = 0; j < grid; ++j) {
-            const double w = (prob1(grid_x(i)) / grid / p1) * ((1 - prob1(grid_x(j))) / grid / p0);
-            a += w * (i > j ? 1.0 : i == j ? 0.5 : 0.0);
+            const double w = (prob_at(a, grid_x(i)) / grid / p1) * ((1 - prob_at(a, grid_x(j))) / grid / p0);
+            r += w * (i > j ? 1.0 : i == j ? 0.5 : 0.0);
         }
-    return a;
+    return r;
 }
 
 // ---- Gaussian designs with any number of features, least squares and 1-NN on chosen columns
@@ -167,14 +182,15 @@ gauss_data make_regression(std::size_t n, const std::vector<double>& b, std::mt1
 
 double logistic(double t) { return 1.0 / (1.0 + std::exp(-t)); }
 
-gauss_data make_classes(std::size_t n, const std::vector<double>& w, std::mt19937_64& g) {
+/// P(y = 1 | x) = logistic(a + w'x), x ~ N(0, I).
+gauss_data make_classes(std::size_t n, const std::vector<double>& w, std::mt19937_64& g, double a = 0.0) {
     std::normal_distribution<double> d;
     std::uniform_real_distribution<double> u(0.0, 1.0);
     const auto k = static_cast<Eigen::Index>(w.size());
     gauss_data D{Eigen::MatrixXd(static_cast<Eigen::Index>(n), k), std::vector<double>(n), std::vector<int>(n),
                  std::vector<double>(n)};
     for (std::size_t i = 0; i < n; ++i) {
-        double t = 0;
+        double t = a;
         for (Eigen::Index j = 0; j < k; ++j) {
             D.X(static_cast<Eigen::Index>(i), j) = d(g);
             t += w[static_cast<std::size_t>(j)] * D.X(static_cast<Eigen::Index>(i), j);
@@ -249,23 +265,142 @@ int nn1(const gauss_data& D, std::span<const std::size_t> train, const double* x
     return lab;
 }
 
-std::vector<int> nn1_predict(const gauss_data& D, std::span<const std::size_t> train, std::span<const std::size_t> test,
-                             const std::vector<int>& cols) {
+// ---- classifiers as learners: fit on training rows and columns, return a rule on a point
+/// A fitted classifier: the label of a point, given all features of the process.
+using rule = std::function<int(const double*)>;
+/// A learner: fits a rule on the training rows of D, using the columns cols.
+using learner = std::function<rule(const gauss_data&, std::span<const std::size_t>, const std::vector<int>&)>;
+
+rule nn1_fit(const gauss_data& D, std::span<const std::size_t> train, const std::vector<int>& cols) {
+    return [&D, tr = std::vector<std::size_t>(train.begin(), train.end()), cols](const double* x) {
+        std::vector<double> xc(cols.size());
+        for (std::size_t j = 0; j < cols.size(); ++j)
+            xc[j] = x[cols[j]];
+        return nn1(D, tr, xc.data(), cols);
+    };
+}
+
+/// Logistic regression with an intercept, Newton-Raphson from zero (at most 30 steps); a ridge
+/// of 1e-3 on the slopes keeps a separable training set finite (the rule is sign(b'x)).
+rule logit_fit(const gauss_data& D, std::span<const std::size_t> train, const std::vector<int>& cols) {
+    const auto k = static_cast<Eigen::Index>(cols.size()) + 1;
+    Eigen::VectorXd b = Eigen::VectorXd::Zero(k), x(k), grad(k);
+    Eigen::MatrixXd H(k, k);
+    for (int it = 0; it < 30; ++it) {
+        grad.setZero();
+        H.setZero();
+        for (auto r : train) {
+            x(0) = 1;
+            for (Eigen::Index j = 1; j < k; ++j)
+                x(j) = D.X(static_cast<Eigen::Index>(r), cols[static_cast<std::size_t>(j - 1)]);
+            const double q = logistic(x.dot(b));
+            grad += x * (D.label[r] - q);
+            H.noalias() += (q * (1 - q)) * x * x.transpose();
+        }
+        for (Eigen::Index j = 1; j < k; ++j) {
+            H(j, j) += 1e-3;
+            grad(j) -= 1e-3 * b(j);
+        }
+        const Eigen::VectorXd step = H.ldlt().solve(grad);
+        b += step;
+        if (step.cwiseAbs().maxCoeff() < 1e-9)
+            break;
+    }
+    return [b, cols](const double* xf) {
+        double t = b(0);
+        for (std::size_t j = 0; j < cols.size(); ++j)
+            t += b(static_cast<Eigen::Index>(j) + 1) * xf[cols[j]];
+        return t > 0 ? 1 : 0;
+    };
+}
+
+/// Discrete AdaBoost (Freund & Schapire 1997) of 100 decision stumps: each round the stump
+/// (column, cut between distinct training values, sign) of least weighted error.
+rule stumps_fit(const gauss_data& D, std::span<const std::size_t> train, const std::vector<int>& cols) {
+    struct stump {
+        int col;
+        double cut, vote; // vote = +-alpha: added when x[col] > cut, subtracted otherwise
+    };
+    const std::size_t n = train.size();
+    std::vector<double> w(n, 1.0 / static_cast<double>(n)), y(n);
+    for (std::size_t i = 0; i < n; ++i)
+        y[i] = D.label[train[i]] == 1 ? 1.0 : -1.0;
+    auto value = [&](std::size_t i, int c) { return D.X(static_cast<Eigen::Index>(train[i]), c); };
+    std::vector<std::vector<std::size_t>> order(cols.size(), std::vector<std::size_t>(n));
+    for (std::size_t j = 0; j < cols.size(); ++j) {
+        for (std::size_t i = 0; i < n; ++i)
+            order[j][i] = i;
+        std::sort(order[j].begin(), order[j].end(),
+                  [&](std::size_t u, std::size_t v) { return value(u, cols[j]) < value(v, cols[j]); });
+    }
+    std::vector<stump> model;
+    for (int m = 0; m < 100; ++m) {
+        double best = 2, cut = 0, sign = 1;
+        int col = cols[0];
+        for (std::size_t j = 0; j < cols.size(); ++j) {
+            // Rows at or below the cut get -sign, above it +sign; e = weighted error of sign +1.
+            double e = 0;
+            for (std::size_t i = 0; i < n; ++i)
+                e += y[i] < 0 ? w[i] : 0.0;
+            for (std::size_t t = 0; t <= n; ++t) {
+                if (t > 0) {
+                    const std::size_t i = order[j][t - 1];
+                    e += y[i] > 0 ? w[i] : -w[i];
+                    if (t < n && value(order[j][t], cols[j]) == value(i, cols[j]))
+                        continue; // no cut between equal values
+                }
+                const double c = t == 0   ? -1e300
+                                 : t == n ? 1e300
+                                          : 0.5 * (value(order[j][t - 1], cols[j]) + value(order[j][t], cols[j]));
+                if (e < best) {
+                    best = e, cut = c, sign = 1, col = cols[j];
+                }
+                if (1 - e < best) {
+                    best = 1 - e, cut = c, sign = -1, col = cols[j];
+                }
+            }
+        }
+        const double eps = std::max(best, 1e-10);
+        if (eps >= 0.5)
+            break;
+        const double alpha = 0.5 * std::log((1 - eps) / eps);
+        model.push_back({col, cut, sign * alpha});
+        double total = 0;
+        for (std::size_t i = 0; i < n; ++i) {
+            const double h = value(i, col) > cut ? sign : -sign;
+            w[i] *= std::exp(-alpha * y[i] * h);
+            total += w[i];
+        }
+        for (auto& v : w)
+            v /= total;
+    }
+    return [model](const double* x) {
+        double f = 0;
+        for (const auto& s : model)
+            f += x[s.col] > s.cut ? s.vote : -s.vote;
+        return f > 0 ? 1 : 0;
+    };
+}
+
+/// The labels a learner fitted on train gives the test rows of D.
+std::vector<int> classify(const learner& fit, const gauss_data& D, std::span<const std::size_t> train,
+                          std::span<const std::size_t> test, const std::vector<int>& cols) {
+    const rule r = fit(D, train, cols);
     std::vector<int> f;
     f.reserve(test.size());
-    std::vector<double> x(cols.size());
-    for (auto r : test) {
-        for (std::size_t j = 0; j < cols.size(); ++j)
-            x[j] = D.X(static_cast<Eigen::Index>(r), cols[j]);
-        f.push_back(nn1(D, train, x.data(), cols));
+    std::vector<double> x(static_cast<std::size_t>(D.X.cols()));
+    for (auto i : test) {
+        for (std::size_t j = 0; j < x.size(); ++j)
+            x[j] = D.X(static_cast<Eigen::Index>(i), static_cast<Eigen::Index>(j));
+        f.push_back(r(x.data()));
     }
     return f;
 }
 
-/// E Err(m) of 1-NN on process w by Monte Carlo: sets training sets of m rows, each scored
-/// exactly (conditional error) at tests fresh points. Returns mean and its MC s.e.
-std::pair<double, double> nn1_expected_error(std::size_t m, const std::vector<double>& w, std::size_t sets,
-                                             std::size_t tests, std::uint64_t seed) {
+/// E Err(m) of a learner on process (w, a) by Monte Carlo: sets training sets of m rows, each
+/// scored exactly (conditional error) at tests fresh points. Returns mean and its MC s.e.
+std::pair<double, double> expected_error(const learner& fit, std::size_t m, const std::vector<double>& w, double a,
+                                         std::size_t sets, std::size_t tests, std::uint64_t seed) {
     std::mt19937_64 g(seed);
     std::normal_distribution<double> d;
     const auto cols = all_columns(w.size());
@@ -275,16 +410,17 @@ std::pair<double, double> nn1_expected_error(std::size_t m, const std::vector<do
     double s = 0, s2 = 0;
     std::vector<double> x(w.size());
     for (std::size_t k = 0; k < sets; ++k) {
-        const auto D = make_classes(m, w, g);
+        const auto D = make_classes(m, w, g, a);
+        const rule r = fit(D, train, cols);
         double e = 0;
         for (std::size_t t = 0; t < tests; ++t) {
-            double z = 0;
+            double z = a;
             for (std::size_t j = 0; j < w.size(); ++j) {
                 x[j] = d(g);
                 z += w[j] * x[j];
             }
             const double q = logistic(z);
-            e += nn1(D, train, x.data(), cols) == 1 ? 1 - q : q;
+            e += r(x.data()) == 1 ? 1 - q : q;
         }
         e /= static_cast<double>(tests);
         s += e;
@@ -297,7 +433,6 @@ std::pair<double, double> nn1_expected_error(std::size_t m, const std::vector<do
 // ---- the study's bookkeeping
 struct row {
     std::string section, process, plan, method, target;
-    bool rejection = false; // a test's rejection rate under a true null (else: interval coverage)
     std::size_t hits = 0, runs = 0, undefined = 0;
     double width = 0;
     std::size_t reps = 0; // replications this row ran
@@ -356,13 +491,14 @@ const std::vector<recorded> full_run = {
 } // namespace
 
 int main(int argc, char** argv) {
-    bool quick = false, emit = false;
+    bool quick = false;
+    const char* record_dir = nullptr; // --record DIR: write the recorded rates and the tables there
     std::vector<const char*> nums;
     for (int i = 1; i < argc; ++i) {
         if (std::strcmp(argv[i], "--quick") == 0)
             quick = true;
-        else if (std::strcmp(argv[i], "--expected") == 0)
-            emit = true;
+        else if (std::strcmp(argv[i], "--record") == 0 && i + 1 < argc)
+            record_dir = argv[++i];
         else
             nums.push_back(argv[i]);
     }
@@ -438,30 +574,52 @@ int main(int argc, char** argv) {
             },
             all);
     }
-    // 1-NN classification, n = 100: the truth by Monte Carlo.
-    const std::vector<double> w_nn{2.0, 0.0};
-    const auto nn_truth = nn1_expected_error(90, w_nn, quick ? 1000 : 2000, 500, seed ^ 0x5A5A5A5AULL);
-    S.add(
-        {{sec1, "1-nearest neighbour, n=100 (unstable)", "10x10-fold", "corrected t", "E Err(n_train)"},
-         {sec1, "1-nearest neighbour, n=100 (unstable)", "10x10-fold", "naive t", "E Err(n_train)"}},
-        [&](std::uint64_t rep, std::vector<cell>& out) {
-            std::mt19937_64 g(seed ^ (0x230000000ULL + rep));
-            const auto D = make_classes(100, w_nn, g);
-            const auto cols = all_columns(2);
-            const auto a = heldout::evaluate_splits(
-                heldout::repeated_kfold{.folds = 10, .repeats = 10, .seed = rep}.splits(100), D.label,
-                [&](auto tr, auto te) { return nn1_predict(D, tr, te, cols); }, cerr);
-            out.push_back(check(a.estimate(cerr, ci::corrected_t, level), nn_truth.first));
-            out.push_back(check(a.estimate(cerr, ci::naive_t, level), nn_truth.first));
-        },
-        all);
+    // Classifiers on x ~ N(0, I_2): the truth E Err(n_train) by Monte Carlo (2000 training
+    // sets x 500 test points, conditional error exact at each point; its MC s.e. is printed).
+    struct class_case {
+        std::string name;
+        std::size_t n;
+        std::vector<double> w;
+        double a;
+        learner fit;
+        std::uint64_t salt;
+    };
+    const std::vector<double> w_nn{2.0, 0.0}, w_rare{1.0, 1.0};
+    const double a_rare = -3.75; // about 5 % positives (numpy: mean logistic(a + z1 + z2) = 0.05 at a = -3.756)
+    const std::vector<class_case> classes = {
+        {"1-nearest neighbour, n=100 (unstable)", 100, w_nn, 0.0, nn1_fit, 0x230000000ULL},
+        {"logistic regression, n=100 (stable)", 100, w_nn, 0.0, logit_fit, 0x240000000ULL},
+        {"boosted stumps (100 rounds), n=100 (unstable)", 100, w_nn, 0.0, stumps_fit, 0x250000000ULL},
+        {"logistic regression, 5% positives, n=200", 200, w_rare, a_rare, logit_fit, 0x260000000ULL},
+        {"1-nearest neighbour, 5% positives, n=200 (unstable)", 200, w_rare, a_rare, nn1_fit, 0x270000000ULL}};
+    std::vector<std::pair<double, double>> class_truth;
+    for (const auto& c : classes)
+        class_truth.push_back(expected_error(c.fit, c.n * 9 / 10, c.w, c.a, 2000, 500, seed ^ 0x5A5A5A5AULL ^ c.salt));
+    for (std::size_t k = 0; k < classes.size(); ++k) {
+        const auto& c = classes[k];
+        const double truth = class_truth[k].first;
+        S.add(
+            {{sec1, c.name, "10x10-fold", "corrected t", "E Err(n_train)"},
+             {sec1, c.name, "10x10-fold", "naive t", "E Err(n_train)"}},
+            [&, c, truth](std::uint64_t rep, std::vector<cell>& out) {
+                std::mt19937_64 g(seed ^ (c.salt + rep));
+                const auto D = make_classes(c.n, c.w, g, c.a);
+                const auto cols = all_columns(c.w.size());
+                const auto a = heldout::evaluate_splits(
+                    heldout::repeated_kfold{.folds = 10, .repeats = 10, .seed = rep}.splits(c.n), D.label,
+                    [&](auto tr, auto te) { return classify(c.fit, D, tr, te, cols); }, cerr);
+                out.push_back(guarded([&] { return check(a.estimate(cerr, ci::corrected_t, level), truth); }));
+                out.push_back(guarded([&] { return check(a.estimate(cerr, ci::naive_t, level), truth); }));
+            },
+            all);
+    }
 
     // ---- 2. comparison tests under a true null, 10 x 10-fold CV
     const std::string sec2 = "comparison test, true null";
     struct null_case {
         std::string name;
         std::size_t n;
-        bool nn;
+        learner fit; // empty: least squares on D.y
         std::vector<double> coef;
         std::vector<int> cols_a, cols_b;
         std::uint64_t salt;
@@ -471,49 +629,59 @@ int main(int argc, char** argv) {
         first20[static_cast<std::size_t>(j)] = j;
         second20[static_cast<std::size_t>(j)] = 20 + j;
     }
-    const std::vector<null_case> nulls = {{"least squares on 2 of 4 features, n=100 (stable)",
-                                           100,
-                                           false,
-                                           {1.0, 1.0, 0.0, 0.0},
-                                           {0, 2},
-                                           {1, 3},
-                                           0x600000000ULL},
-                                          {"least squares on 20 of 40 features, n=50 (unstable)", 50, false,
-                                           std::vector<double>(40, 0.3), first20, second20, 0x610000000ULL},
-                                          {"1-nearest neighbour on 2 of 4 features, n=100 (unstable)",
-                                           100,
-                                           true,
-                                           {1.5, 1.5, 0.0, 0.0},
-                                           {0, 2},
-                                           {1, 3},
-                                           0x620000000ULL}};
+    const std::vector<double> sym{1.5, 1.5, 0.0, 0.0};
+    const std::vector<null_case> nulls = {
+        {"least squares on 2 of 4 features, n=100 (stable)",
+         100,
+         {},
+         {1.0, 1.0, 0.0, 0.0},
+         {0, 2},
+         {1, 3},
+         0x600000000ULL},
+        {"least squares on 20 of 40 features, n=50 (unstable)",
+         50,
+         {},
+         std::vector<double>(40, 0.3),
+         first20,
+         second20,
+         0x610000000ULL},
+        {"1-nearest neighbour on 2 of 4 features, n=100 (unstable)", 100, nn1_fit, sym, {0, 2}, {1, 3}, 0x620000000ULL},
+        {"logistic regression on 2 of 4 features, n=100 (stable)", 100, logit_fit, sym, {0, 2}, {1, 3}, 0x630000000ULL},
+        {"boosted stumps on 2 of 4 features, n=100 (unstable)", 100, stumps_fit, sym, {0, 2}, {1, 3}, 0x640000000ULL}};
     for (const auto& c : nulls) {
         S.add(
             {{sec2, c.name, "10x10-fold", "corrected t", "rejects at 5%"},
-             {sec2, c.name, "10x10-fold", "naive t", "rejects at 5%"}},
+             {sec2, c.name, "10x10-fold", "naive t", "rejects at 5%"},
+             {sec2, c.name, "5x2-fold", "5x2cv t", "rejects at 5%"},
+             {sec2, c.name, "5x2-fold", "5x2cv F", "rejects at 5%"}},
             [&, c](std::uint64_t rep, std::vector<cell>& out) {
                 std::mt19937_64 g(seed ^ (c.salt + rep));
-                const auto D = c.nn ? make_classes(c.n, c.coef, g) : make_regression(c.n, c.coef, g);
-                const auto plan = heldout::repeated_kfold{.folds = 10, .repeats = 10, .seed = rep};
-                if (c.nn) {
-                    const auto a = heldout::evaluate_splits(
-                        plan.splits(c.n), D.label, [&](auto tr, auto te) { return nn1_predict(D, tr, te, c.cols_a); },
-                        cerr);
-                    const auto b = heldout::evaluate_splits(
-                        plan.splits(c.n), D.label, [&](auto tr, auto te) { return nn1_predict(D, tr, te, c.cols_b); },
-                        cerr);
-                    out.push_back(guarded([&] { return rejects(heldout::compare(a, b, cerr, paired::corrected_t)); }));
-                    out.push_back(guarded([&] { return rejects(heldout::compare(a, b, cerr, paired::naive_t)); }));
-                } else {
+                const auto D = c.fit ? make_classes(c.n, c.coef, g) : make_regression(c.n, c.coef, g);
+                // Both models on the same splits of a plan; the comparison by the given method.
+                auto test = [&](const auto& plan, paired::method how) {
+                    if (c.fit) {
+                        const auto a = heldout::evaluate_splits(
+                            plan.splits(c.n), D.label,
+                            [&](auto tr, auto te) { return classify(c.fit, D, tr, te, c.cols_a); }, cerr);
+                        const auto b = heldout::evaluate_splits(
+                            plan.splits(c.n), D.label,
+                            [&](auto tr, auto te) { return classify(c.fit, D, tr, te, c.cols_b); }, cerr);
+                        return heldout::compare(a, b, cerr, how);
+                    }
                     const auto a = heldout::evaluate_splits(
                         plan.splits(c.n), D.y, [&](auto tr, auto te) { return ols_predict_on(D, tr, te, c.cols_a); },
                         mse);
                     const auto b = heldout::evaluate_splits(
                         plan.splits(c.n), D.y, [&](auto tr, auto te) { return ols_predict_on(D, tr, te, c.cols_b); },
                         mse);
-                    out.push_back(guarded([&] { return rejects(heldout::compare(a, b, mse, paired::corrected_t)); }));
-                    out.push_back(guarded([&] { return rejects(heldout::compare(a, b, mse, paired::naive_t)); }));
-                }
+                    return heldout::compare(a, b, mse, how);
+                };
+                const auto rk = heldout::repeated_kfold{.folds = 10, .repeats = 10, .seed = rep};
+                const auto f2 = heldout::five_by_two{.seed = rep};
+                out.push_back(guarded([&] { return rejects(test(rk, paired::corrected_t)); }));
+                out.push_back(guarded([&] { return rejects(test(rk, paired::naive_t)); }));
+                out.push_back(guarded([&] { return rejects(test(f2, paired::five_by_two_t)); }));
+                out.push_back(guarded([&] { return rejects(test(f2, paired::five_by_two_f)); }));
             },
             all);
     }
@@ -617,6 +785,49 @@ int main(int argc, char** argv) {
             all);
     }
 
+    // Nested CV with an unstable classifier: 1-nearest neighbour, n = 100, 0-1 loss. Err_XY
+    // of the rule fitted on all rows: the conditional error averaged over 4000 fresh points
+    // (exact at each point); E Err(100) by Monte Carlo as in section 1.
+    {
+        const std::size_t n = 100;
+        const auto err_n = expected_error(nn1_fit, n, w_nn, 0.0, 2000, 500, seed ^ 0x5A5A5A5AULL ^ 0x280000000ULL);
+        class_truth.push_back(err_n);
+        const std::string name = "1-nearest neighbour, n=100 (unstable)";
+        S.add(
+            {{sec4, name, "10 folds x 50", "nested CV", "Err_XY"},
+             {sec4, name, "10 folds x 50", "nested CV", "E Err(n)"},
+             {sec4, name, "10 folds x 50", "naive CV (t on all losses)", "Err_XY"},
+             {sec4, name, "10 folds x 50", "naive CV (t on all losses)", "E Err(n)"}},
+            [&, n, err_n](std::uint64_t rep, std::vector<cell>& out) {
+                std::mt19937_64 g(seed ^ (0x11000000000ULL + rep));
+                const auto D = make_classes(n, w_nn, g);
+                const auto cols = all_columns(2);
+                std::vector<std::size_t> every(n);
+                for (std::size_t i = 0; i < n; ++i)
+                    every[i] = i;
+                const rule whole = nn1_fit(D, every, cols);
+                std::normal_distribution<double> d;
+                double err_xy = 0;
+                for (int t = 0; t < 4000; ++t) {
+                    const double x[2] = {d(g), d(g)};
+                    const double q = logistic(w_nn[0] * x[0] + w_nn[1] * x[1]);
+                    err_xy += (whole(x) == 1 ? 1 - q : q) / 4000.0;
+                }
+                const auto r = heldout::nested_cv_interval(
+                    [&](auto tr, auto te) {
+                        const auto l = classify(nn1_fit, D, tr, te, cols);
+                        return std::vector<double>(l.begin(), l.end());
+                    },
+                    D.y, heldout::loss::zero_one{0.5}, {.folds = 10, .repeats = 50, .level = level, .seed = rep});
+                auto in = [](double lo, double hi, double t) { return cell{true, lo <= t && t <= hi, hi - lo}; };
+                out.push_back(in(r.lower, r.upper, err_xy));
+                out.push_back(in(r.lower, r.upper, err_n.first));
+                out.push_back(in(r.naive_lower, r.naive_upper, err_xy));
+                out.push_back(in(r.naive_lower, r.naive_upper, err_n.first));
+            },
+            all);
+    }
+
     // ---- 5. one test set, fixed rules (logistic grid, exact truths)
     const std::string sec5 = "one test set";
     const double err_true = true_error(), auc_true = true_auc();
@@ -660,6 +871,73 @@ int main(int argc, char** argv) {
         },
         all);
 
+    // Class imbalance on one test set: the grid process with intercept -4.1 (5.1 % positives),
+    // the rule "predict 1 when x > 1.5", 200 rows (about 10 positives).
+    const double a_grid_rare = -4.1, err_rare = true_error(a_grid_rare, 1.5), auc_rare = true_auc(a_grid_rare);
+    S.add(
+        {{sec5, "logistic grid, 5% positives, fixed rule", "200 rows", "Wilson", "error rate"},
+         {sec5, "logistic grid, 5% positives, fixed rule", "200 rows", "Clopper-Pearson", "error rate"},
+         {sec5, "logistic grid, 5% positives, fixed rule", "200 rows", "Agresti-Coull", "error rate"},
+         {sec5, "logistic grid, 5% positives, fixed rule", "200 rows", "t", "error rate"},
+         {sec5, "logistic grid, 5% positives, fixed rule", "200 rows", "DeLong (logit)", "AUC"},
+         {sec5, "logistic grid, 5% positives, fixed rule", "200 rows", "Newcombe score", "AUC"}},
+        [&](std::uint64_t rep, std::vector<cell>& out) {
+            std::mt19937_64 g(seed ^ (0x310000000ULL + rep));
+            std::uniform_int_distribution<int> pick(0, grid - 1);
+            std::uniform_real_distribution<double> u(0.0, 1.0);
+            const std::size_t m = 200;
+            std::vector<int> y(m), label(m);
+            std::vector<double> score(m);
+            std::vector<std::size_t> rows(m);
+            for (std::size_t i = 0; i < m; ++i) {
+                const double x = grid_x(pick(g));
+                y[i] = u(g) < prob_at(a_grid_rare, x) ? 1 : 0;
+                label[i] = x > 1.5 ? 1 : 0;
+                score[i] = x;
+                rows[i] = i;
+            }
+            const heldout::split s{{}, rows, 0, 0, 0, {}};
+            heldout::aggregator err(cerr);
+            err.record(s, y, label);
+            out.push_back(guarded([&] { return check(err.estimate(cerr, ci::wilson, level), err_rare); }));
+            out.push_back(guarded([&] { return check(err.estimate(cerr, ci::clopper_pearson, level), err_rare); }));
+            out.push_back(guarded([&] { return check(err.estimate(cerr, ci::agresti_coull, level), err_rare); }));
+            out.push_back(guarded([&] { return check(err.estimate(cerr, ci::t, level), err_rare); }));
+            heldout::aggregator a(auc);
+            a.record(s, y, score);
+            out.push_back(guarded([&] { return check(a.estimate(auc, ci::delong, level), auc_rare); }));
+            out.push_back(guarded([&] { return check(a.estimate(auc, ci::newcombe, level), auc_rare); }));
+        },
+        all);
+    // Tests on one test set under a true null: two fixed rules equally good by symmetry
+    // (x ~ N(0, I_2), P(y = 1 | x) = logistic(1.5 (x1 + x2)); A predicts x1 > 0, B x2 > 0).
+    const std::string sec6 = "comparison test on one test set, true null";
+    S.add(
+        {{sec6, "two symmetric fixed rules", "100 rows", "McNemar exact", "rejects at 5%"},
+         {sec6, "two symmetric fixed rules", "100 rows", "McNemar mid-p", "rejects at 5%"},
+         {sec6, "two symmetric fixed rules", "100 rows", "McNemar chi-squared", "rejects at 5%"},
+         {sec6, "two symmetric fixed rules", "100 rows", "McNemar continuity-corrected", "rejects at 5%"},
+         {sec6, "two symmetric fixed rules", "100 rows", "paired percentile bootstrap", "rejects at 5%"},
+         {sec6, "two symmetric fixed rules", "100 rows", "paired BCa bootstrap", "rejects at 5%"}},
+        [&](std::uint64_t rep, std::vector<cell>& out) {
+            std::mt19937_64 g(seed ^ (0x320000000ULL + rep));
+            std::normal_distribution<double> d;
+            std::uniform_real_distribution<double> u(0.0, 1.0);
+            const std::size_t m = 100;
+            std::vector<int> y(m), la(m), lb(m);
+            for (std::size_t i = 0; i < m; ++i) {
+                const double x1 = d(g), x2 = d(g);
+                y[i] = u(g) < logistic(1.5 * (x1 + x2)) ? 1 : 0;
+                la[i] = x1 > 0 ? 1 : 0;
+                lb[i] = x2 > 0 ? 1 : 0;
+            }
+            for (auto how :
+                 {paired::mcnemar_exact, paired::mcnemar_mid_p, paired::mcnemar_chi_squared, paired::mcnemar_corrected,
+                  paired::bootstrap_percentile(1000, rep), paired::bootstrap_bca(1000, rep)})
+                out.push_back(guarded([&] { return rejects(heldout::compare(cerr, y, la, lb, how)); }));
+        },
+        all);
+
     // Run: each worker takes every threads-th replication; cells land by replication number,
     // so the table is the same for any thread count.
     const auto t0 = std::chrono::steady_clock::now();
@@ -695,38 +973,65 @@ int main(int argc, char** argv) {
         }
     const double secs = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
 
-    std::printf("Coverage of nominal 95%% intervals and rejection rates of 5%% tests under a true null;\n"
-                "%zu replications per row, seed %llu, %u threads%s.\n",
-                reps, static_cast<unsigned long long>(seed), threads, quick ? " (quick run)" : "");
+    std::string text; // the tables, printed and (with --record) written to coverage_full_run.md
+    auto put = [&text](const char* fmt, auto... args) {
+        char buf[1024];
+        std::snprintf(buf, sizeof buf, fmt, args...);
+        text += buf;
+    };
+    put("Coverage of nominal 95%% intervals and rejection rates of 5%% tests under a true null;\n"
+        "%zu replications per row, seed %llu, %u threads%s.\n",
+        reps, static_cast<unsigned long long>(seed), threads, quick ? " (quick run)" : "");
     std::string section;
     for (const auto& r : S.rows) {
         if (r.section != section) {
             section = r.section;
-            std::printf("\n### %s\n\n", section.c_str());
-            std::printf("| process | plan | method | target | %s | MC s.e. | mean width | no interval | %s |\n",
-                        r.rejection || r.target == "rejects at 5%" ? "rate" : "rate", "no interval counted as miss");
-            std::printf("|---|---|---|---|---:|---:|---:|---:|---:|\n");
+            put("\n### %s\n\n", section.c_str());
+            text += "| process | plan | method | target | rate | MC s.e. | mean width | no interval | no interval "
+                    "counted as miss |\n";
+            text += "|---|---|---|---|---:|---:|---:|---:|---:|\n";
         }
         const double runs = static_cast<double>(r.runs);
         const double c = runs > 0 ? static_cast<double>(r.hits) / runs : 0.0;
         const double miss = r.reps > 0 ? static_cast<double>(r.hits) / static_cast<double>(r.reps) : 0.0;
-        std::printf("| %s | %s | %s | %s | %.3f | %.3f | %s | %zu | %.3f |\n", r.process.c_str(), r.plan.c_str(),
-                    r.method.c_str(), r.target.c_str(), c, std::sqrt(c * (1 - c) / std::max(runs, 1.0)),
-                    r.target == "rejects at 5%" ? "-"
-                                                : std::to_string(r.width / std::max(runs, 1.0)).substr(0, 6).c_str(),
-                    r.undefined, miss);
+        put("| %s | %s | %s | %s | %.3f | %.3f | %s | %zu | %.3f |\n", r.process.c_str(), r.plan.c_str(),
+            r.method.c_str(), r.target.c_str(), c, std::sqrt(c * (1 - c) / std::max(runs, 1.0)),
+            r.target == "rejects at 5%" ? "-" : std::to_string(r.width / std::max(runs, 1.0)).substr(0, 6).c_str(),
+            r.undefined, miss);
     }
-    std::printf("\nTruths: least squares E Err(n_train) = 1 + p/(n_train - p - 1), Err_XY = 1 + |b - beta|^2; "
-                "1-NN E Err(90) = %.5f (MC s.e. %.5f); logistic grid error rate %.6f, AUC %.6f.\n",
-                nn_truth.first, nn_truth.second, err_true, auc_true);
-    std::printf("(%.1f s on %u threads)\n", secs, threads);
+    text += "\nTruths: least squares E Err(n_train) = 1 + p/(n_train - p - 1), Err_XY = 1 + |b - beta|^2;";
+    for (std::size_t k = 0; k < classes.size(); ++k)
+        put(" %s E Err(%zu) = %.5f (MC s.e. %.5f);", classes[k].name.c_str(), classes[k].n * 9 / 10,
+            class_truth[k].first, class_truth[k].second);
+    put(" nested CV: 1-nearest neighbour E Err(100) = %.5f (MC s.e. %.5f);", class_truth.back().first,
+        class_truth.back().second);
+    put(" logistic grid error rate %.6f, AUC %.6f; with 5%% positives (rule x > 1.5) %.6f, AUC %.6f.\n", err_true,
+        auc_true, err_rare, auc_rare);
+    put("(%.1f s on %u threads)\n", secs, threads);
 
-    if (emit) {
-        std::printf("\n// coverage_recorded.inc: the full run's rates (%zu replications, seed %llu)\n", reps,
-                    static_cast<unsigned long long>(seed));
+    std::fputs(text.c_str(), stdout);
+    if (record_dir) {
+        // The one command that regenerates the recorded rates (read by the quick run) and the
+        // tables of docs/intervals.md: example_coverage_study --record examples/coverage
+        const std::string dir = record_dir;
+        std::FILE* inc = std::fopen((dir + "/coverage_recorded.inc").c_str(), "w");
+        std::FILE* md = std::fopen((dir + "/coverage_full_run.md").c_str(), "w");
+        if (!inc || !md) {
+            std::fprintf(stderr, "cannot write to %s\n", record_dir);
+            return 2;
+        }
+        std::fprintf(inc,
+                     "// Written by the full run of the coverage study, %zu replications, seed %llu, %u threads:\n"
+                     "//   example_coverage_study --record examples/coverage\n"
+                     "// (from the source directory; it also writes coverage_full_run.md, the tables of\n"
+                     "// docs/intervals.md). Do not edit: rerun after any change meant to move a rate.\n",
+                     reps, static_cast<unsigned long long>(seed), threads);
         for (const auto& r : S.rows)
-            std::printf("{\"%s\", %.6f},\n", key_of(r).c_str(),
-                        r.runs > 0 ? static_cast<double>(r.hits) / static_cast<double>(r.runs) : 0.0);
+            std::fprintf(inc, "{\"%s\", %.6f},\n", key_of(r).c_str(),
+                         r.runs > 0 ? static_cast<double>(r.hits) / static_cast<double>(r.runs) : 0.0);
+        std::fputs(text.c_str(), md);
+        std::fclose(inc);
+        std::fclose(md);
     }
     if (!quick)
         return 0;
