@@ -6,7 +6,8 @@
 // error, so the study cannot rot and a change that moves a coverage fails.
 //
 //   example_coverage_study --record examples/coverage   # THE full run (2000 replications, 2
-//        # threads, seed 20261201); writes coverage_recorded.inc and coverage_full_run.md there
+//        # threads, seed 20261201), from the source directory; writes coverage_recorded.inc and
+//        # coverage_full_run.md there and the same tables into docs/intervals.md (between markers)
 //   example_coverage_study --quick                # 300 replications, checked against coverage_recorded.inc
 //   example_coverage_study 500 2 7                # replications, threads, seed (prints the tables only)
 //
@@ -1032,6 +1033,37 @@ int main(int argc, char** argv) {
         std::fputs(text.c_str(), md);
         std::fclose(inc);
         std::fclose(md);
+        // The same tables go into docs/intervals.md between its markers (DIR/../../docs when
+        // DIR is examples/coverage of a source tree), so the docs cannot drift from the run.
+        const std::string doc = dir + "/../../docs/intervals.md";
+        std::string body;
+        if (std::FILE* f = std::fopen(doc.c_str(), "r")) {
+            char buf[4096];
+            for (std::size_t got; (got = std::fread(buf, 1, sizeof buf, f)) > 0;)
+                body.append(buf, got);
+            std::fclose(f);
+        }
+        const std::string open_mark = "<!-- coverage tables: examples/coverage/coverage_full_run.md, written by the "
+                                      "full run; do not edit -->\n",
+                          close_mark = "<!-- end of coverage tables -->\n";
+        const auto i = body.find(open_mark), j = body.find(close_mark);
+        if (i == std::string::npos || j == std::string::npos || j < i) {
+            std::fprintf(stderr, "%s: no coverage-table markers; docs not updated\n", doc.c_str());
+            return 2;
+        }
+        std::string tables = text;
+        for (std::size_t k = 0; (k = tables.find("\n### ", k)) != std::string::npos; k += 6)
+            tables.replace(k, 5, "\n#### ");
+        while (!tables.empty() && tables.back() == '\n')
+            tables.pop_back();
+        body = body.substr(0, i + open_mark.size()) + "\n" + tables + "\n\n" + body.substr(j);
+        std::FILE* f = std::fopen(doc.c_str(), "w");
+        if (!f) {
+            std::fprintf(stderr, "cannot write %s\n", doc.c_str());
+            return 2;
+        }
+        std::fputs(body.c_str(), f);
+        std::fclose(f);
     }
     if (!quick)
         return 0;
