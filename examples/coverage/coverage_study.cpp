@@ -790,7 +790,7 @@ int main(int argc, char** argv) {
     // of the rule fitted on all rows: the conditional error averaged over 4000 fresh points
     // (exact at each point); E Err(100) by Monte Carlo as in section 1.
     {
-        const std::size_t n = 100;
+        constexpr std::size_t n = 100;
         const auto err_n = expected_error(nn1_fit, n, w_nn, 0.0, 2000, 500, seed ^ 0x5A5A5A5AULL ^ 0x280000000ULL);
         class_truth.push_back(err_n);
         const std::string name = "1-nearest neighbour, n=100 (unstable)";
@@ -799,7 +799,7 @@ int main(int argc, char** argv) {
              {sec4, name, "10 folds x 50", "nested CV", "E Err(n)"},
              {sec4, name, "10 folds x 50", "naive CV (t on all losses)", "Err_XY"},
              {sec4, name, "10 folds x 50", "naive CV (t on all losses)", "E Err(n)"}},
-            [&, n, err_n](std::uint64_t rep, std::vector<cell>& out) {
+            [&, err_n](std::uint64_t rep, std::vector<cell>& out) {
                 std::mt19937_64 g(seed ^ (0x11000000000ULL + rep));
                 const auto D = make_classes(n, w_nn, g);
                 const auto cols = all_columns(2);
