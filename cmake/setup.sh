@@ -24,7 +24,7 @@ tool_packages=("${demo_packages[@]}" libcli11-dev)
 # Every test (others add theirs here).
 packages=(cmake ninja-build g++ libeigen3-dev libboost-math-dev doctest-dev libbenchmark-dev
           python3-scipy python3-numpy r-base-core r-cran-survival libcli11-dev openmpi-bin libopenmpi-dev)
-packages+=(chromium) # the HTML report's browser test (examples/tool: report.browser)
+packages+=(chromium) # the HTML report's browser test (tests/browser: report.browser)
 
 mkdir -p build
 log=build/setup.log

@@ -7,6 +7,9 @@
 //   auto all = heldout::mpi::merge(acc, MPI_COMM_WORLD);          // same on every rank
 //   double auc = heldout::mpi::evaluate(heldout::measure::auc{}, my_truth_shard, my_score_shard,
 //                                       MPI_COMM_WORLD);
+//   double n10 = heldout::mpi::evaluate(heldout::measure::ndcg{.k = 10},       // <heldout/query.hpp>
+//                                       heldout::by_query(my_query_ids, my_relevance), my_scores,
+//                                       MPI_COMM_WORLD);               // each query on one rank
 //   heldout::aggregator agg = heldout::mpi::evaluate_splits(
 //       MPI_COMM_WORLD, heldout::repeated_kfold{.folds = 10, .repeats = 10, .seed = 1}.splits(n), y,
 //       fit_predict, heldout::measure::mse{});                      // same on every rank
@@ -16,6 +19,7 @@
 // a mismatch is refused on every rank (heldout::state_error, an input_error). An exception on one rank (bad
 // input, a failed fit) makes every rank throw heldout::mpi::remote_error naming the failing rank
 // and carrying its message, after the ranks have agreed on it — no rank is left waiting.
+// evaluate takes every measure family; a query measure's queries must each lie on one rank.
 // Layout of what travels and the dispatch protocol: docs/mpi.md.
 #pragma once
 
@@ -238,16 +242,104 @@ std::uint64_t measure_fingerprint(std::uint64_t h, const M& m) {
     return hash_more(h, bytes.data(), bytes.size());
 }
 
+/// Rows of a truth shard: a range of numbers, or a family's truth view with size()
+/// (heldout::by_query judgements, heldout::censored times).
+template <class T>
+std::size_t truth_rows(const T& truth) {
+    if constexpr (requires { truth.size(); } && !value_range<T>)
+        return truth.size();
+    else
+        return values_of(truth, "heldout::mpi::evaluate", "truth_shard").size();
+}
+
 /// A rank may hold no rows: its shard is skipped (an empty accumulator), where add() would
 /// refuse an empty input. A non-empty prediction beside empty truth still goes to add().
 template <class T, class P>
 bool empty_shard(const T& truth, const P& prediction) {
-    if (values_of(truth, "heldout::mpi::evaluate", "truth_shard").size() != 0)
+    if (truth_rows(truth) != 0)
         return false;
     if constexpr (requires { prediction.size(); })
         return prediction.size() == 0;
+    else if constexpr (probability_rows<P>)
+        return rows_of(prediction).rows == 0;
     else
         return false;
+}
+
+/// Query accumulators (query/accumulator.hpp) keep one value per query, and a query id met
+/// again in another shard counts as another query; one process over the concatenated shards
+/// would pool its rows into one query instead. So a query must lie on one rank: an id held by
+/// two ranks is refused (the smallest such id, with the two lowest ranks holding it). Every
+/// rank runs this on the same states, so every rank refuses together.
+template <class A>
+void check_queries_on_one_rank(const std::vector<A>& states) {
+    if constexpr (requires(const A& a) {
+                      a.per_query();
+                      a.skipped();
+                  }) {
+        std::vector<std::pair<std::int64_t, std::size_t>> ids; // (query, rank)
+        for (std::size_t r = 0; r < states.size(); ++r) {
+            for (const auto& q : states[r].per_query())
+                ids.emplace_back(q.query, r);
+            for (const std::int64_t q : states[r].skipped())
+                ids.emplace_back(q, r);
+        }
+        std::sort(ids.begin(), ids.end());
+        for (std::size_t i = 1; i < ids.size(); ++i)
+            if (ids[i].first == ids[i - 1].first && ids[i].second != ids[i - 1].second)
+                detail::fail("heldout::mpi::evaluate", "truth_shard",
+                             "query " + std::to_string(ids[i].first) + " has rows on rank " +
+                                 std::to_string(ids[i - 1].second) + " and rank " + std::to_string(ids[i].second) +
+                                 ": each query must lie whole on one rank (a query id on two shards would be "
+                                 "two queries)");
+    }
+}
+
+/// The states of every rank, merged left to right (rank 0's first) after `check` saw them
+/// all. Collective; the fingerprint check of merge() comes first.
+template <class A, class Check>
+A merge_checked(const A& acc, MPI_Comm comm, std::string_view who, Check&& check_states) {
+    // The same measure and parameters everywhere: the state of a reset copy keeps only those.
+    const auto fingerprint = guarded(comm, [&] {
+        A empty = acc;
+        empty.reset();
+        const auto b = serialize(empty);
+        return fnv1a(b);
+    });
+    same_everywhere(fingerprint, who, "acc", comm);
+    const auto mine = guarded(comm, [&] { return serialize(acc); });
+    const auto all = all_gather(mine, comm);
+    auto states = guarded(comm, [&] {
+        std::vector<A> v;
+        v.reserve(all.size());
+        for (const auto& b : all)
+            v.push_back(deserialize<A>(b));
+        return v;
+    });
+    // Every rank holds the same states here: the check throws on every rank or on none, so it
+    // throws its own error (an input_error) rather than a remote_error.
+    check_states(std::as_const(states));
+    return guarded(comm, [&] {
+        A out = std::move(states[0]);
+        for (std::size_t r = 1; r < states.size(); ++r)
+            out.merge(states[r]);
+        return out;
+    });
+}
+
+/// evaluate's body: the shard into a fresh accumulator (add_shard), merged over the ranks.
+template <class M, class T, class P, class Add>
+double evaluate_shards(const M& m, const T& truth_shard, const P& prediction_shard, MPI_Comm comm, Add&& add_shard) {
+    same_everywhere(guarded(comm, [&] { return measure_fingerprint(fnv_offset, m); }), "heldout::mpi::evaluate", "m",
+                    comm);
+    auto acc = m.accumulator();
+    guarded(comm, [&] {
+        if (!empty_shard(truth_shard, prediction_shard))
+            add_shard(acc);
+    });
+    const auto all = merge_checked(acc, comm, "heldout::mpi::evaluate",
+                                   [](const auto& states) { check_queries_on_one_rank(states); });
+    return guarded(comm, [&] { return all.value(); });
 }
 
 // Messages of the split dispatcher.
@@ -262,53 +354,28 @@ namespace mpi {
 /// shards left to right on one machine gives (rank 0's first). Collective.
 template <class A>
 requires detail::visitable_state<A> A merge(const A& acc, MPI_Comm comm) {
-    namespace impl = detail::mpi_impl;
-    // The same measure and parameters everywhere: the state of a reset copy keeps only those.
-    const auto fingerprint = impl::guarded(comm, [&] {
-        A empty = acc;
-        empty.reset();
-        const auto b = serialize(empty);
-        return detail::fnv1a(b);
-    });
-    impl::same_everywhere(fingerprint, "heldout::mpi::merge", "acc", comm);
-    const auto mine = impl::guarded(comm, [&] { return serialize(acc); });
-    const auto all = impl::all_gather(mine, comm);
-    return impl::guarded(comm, [&] {
-        A out = deserialize<A>(all[0]);
-        for (std::size_t r = 1; r < all.size(); ++r)
-            out.merge(deserialize<A>(all[r]));
-        return out;
-    });
+    return detail::mpi_impl::merge_checked(acc, comm, "heldout::mpi::merge", [](const auto&) {});
 }
 
-/// The measure on the union of every rank's shard (rank order), on every rank. Collective.
+/// The measure on the union of every rank's shard (rank order), on every rank, bit for bit
+/// the one-process value over the concatenated shards (rank 0's first). Every measure family:
+/// truth and prediction as the measure takes them (numbers; heldout::by_query judgements with
+/// scores; heldout::censored times with risks, survival probabilities or heldout::rows curves).
+/// Query measures: each query lies whole on one rank (an id on two ranks: input_error naming
+/// it). Collective.
 template <outer_measure M, class T, class P>
+requires scores<M, T, P>
 double evaluate(const M& m, const T& truth_shard, const P& prediction_shard, MPI_Comm comm) {
-    namespace impl = detail::mpi_impl;
-    impl::same_everywhere(impl::guarded(comm, [&] { return impl::measure_fingerprint(detail::fnv_offset, m); }),
-                          "heldout::mpi::evaluate", "m", comm);
-    auto acc = m.accumulator();
-    impl::guarded(comm, [&] {
-        if (!impl::empty_shard(truth_shard, prediction_shard))
-            acc.add(truth_shard, prediction_shard);
-    });
-    const auto all = merge(acc, comm);
-    return impl::guarded(comm, [&] { return all.value(); });
+    return detail::mpi_impl::evaluate_shards(m, truth_shard, prediction_shard, comm,
+                                             [&](auto& acc) { acc.add(truth_shard, prediction_shard); });
 }
 
-/// The same with per-row weights.
+/// The same with per-row weights (query measures: per-query weights, equal on a query's rows).
 template <outer_measure M, class T, class P, class W>
+requires scores_weighted<M, T, P, W>
 double evaluate(const M& m, const T& truth_shard, const P& prediction_shard, const W& weight_shard, MPI_Comm comm) {
-    namespace impl = detail::mpi_impl;
-    impl::same_everywhere(impl::guarded(comm, [&] { return impl::measure_fingerprint(detail::fnv_offset, m); }),
-                          "heldout::mpi::evaluate", "m", comm);
-    auto acc = m.accumulator();
-    impl::guarded(comm, [&] {
-        if (!impl::empty_shard(truth_shard, prediction_shard))
-            acc.add(truth_shard, prediction_shard, weight_shard);
-    });
-    const auto all = merge(acc, comm);
-    return impl::guarded(comm, [&] { return all.value(); });
+    return detail::mpi_impl::evaluate_shards(m, truth_shard, prediction_shard, comm,
+                                             [&](auto& acc) { acc.add(truth_shard, prediction_shard, weight_shard); });
 }
 
 /// Shares the plan's fits among the ranks (rank 0 hands out the next split to whichever rank
@@ -436,9 +503,11 @@ requires std::invocable<F&, std::span<const std::size_t>, std::span<const std::s
         ++finished;
     };
 
-    // 3. Dynamic hand-out. Rank 0 keeps the counter, answers requests between its own fits;
-    //    each worker asks for its next task before fitting the current one, so the answer is
-    //    waiting when it finishes (rank 0 answers at most one of its own fits later).
+    // 3. Dynamic hand-out. Worker w starts on task w - 1 without asking (nobody waits for
+    //    rank 0's first fit); rank 0 keeps the counter from there, fits too, and answers
+    //    requests between its own fits. Each worker asks for its next task before fitting the
+    //    current one, so the answer is waiting when it finishes as long as rank 0's fits are
+    //    not longer than the worker's. Only (task, count) pairs travel until the end.
     std::size_t reported = 0;
     if (ranks == 1) {
         for (std::size_t t = 0; t < tasks && !failed; ++t) {
@@ -447,9 +516,11 @@ requires std::invocable<F&, std::span<const std::size_t>, std::span<const std::s
                 options.progress(reported = finished, tasks);
         }
     } else if (rank == 0) {
-        std::size_t next = 0;
+        const auto workers = static_cast<std::size_t>(ranks - 1);
+        std::size_t next = std::min(workers, tasks); // tasks 0 .. ranks - 2 went to the workers
         bool stop = false;
-        int stopped_workers = 0;
+        // A worker without a first task sends no request: it is stopped from the start.
+        auto stopped_workers = static_cast<int>(workers - next);
         std::vector<std::size_t> worker_done(static_cast<std::size_t>(ranks), 0);
         auto report = [&] {
             std::size_t d = finished;
@@ -504,14 +575,12 @@ requires std::invocable<F&, std::span<const std::size_t>, std::span<const std::s
             long long msg[2] = {failed ? 1 : 0, static_cast<long long>(finished)};
             impl::check(MPI_Send(msg, 2, MPI_LONG_LONG, 0, impl::tag_request, comm), "MPI_Send");
         };
-        request();
-        for (;;) {
-            long long task = -1;
-            impl::check(MPI_Recv(&task, 1, MPI_LONG_LONG, 0, impl::tag_task, comm, MPI_STATUS_IGNORE), "MPI_Recv");
-            if (task < 0)
-                break;
+        const auto first = static_cast<std::size_t>(rank - 1);
+        long long task = first < tasks ? static_cast<long long>(first) : -1;
+        while (task >= 0) {
             request(); // ask for the next one now: its answer waits while this one is fitted
             run_task(static_cast<std::size_t>(task));
+            impl::check(MPI_Recv(&task, 1, MPI_LONG_LONG, 0, impl::tag_task, comm, MPI_STATUS_IGNORE), "MPI_Recv");
         }
     }
 

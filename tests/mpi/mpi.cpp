@@ -2,21 +2,25 @@
 // Every rank regenerates every shard (shard r from heldout::rng(seed, r)), so each rank can
 // compare the distributed result byte for byte with one process doing the same work.
 // Prints "heldout::mpi checks passed" on rank 0 and exits 0 only if every check held on every rank.
+#include <heldout/censored.hpp>
 #include <heldout/core/random.hpp>
 #include <heldout/estimate.hpp>
 #include <heldout/measure.hpp>
 #include <heldout/mpi.hpp>
 #include <heldout/plan.hpp>
+#include <heldout/query.hpp>
 #include <heldout/stream/serialize.hpp>
 
 #include <mpi.h>
 
+#include <chrono>
 #include <cmath>
 #include <cstdio>
 #include <cstring>
 #include <span>
 #include <sstream>
 #include <string>
+#include <thread>
 #include <vector>
 
 namespace {
@@ -115,6 +119,73 @@ std::string describe(const heldout::aggregator& agg, const auto&... ms) {
     return os.str();
 }
 
+// Query shard r: 8 + r queries with ids 1000 r + j (each query whole on its rank), 1 to 12
+// rows each, rows of two queries interleaved, graded relevance 0..3 (some queries with no
+// relevant item), scores on a coarse grid (ties), per-query weights. Rank 1 is empty with 3
+// or more ranks.
+struct query_shard {
+    std::vector<long> query;
+    std::vector<int> relevance;
+    std::vector<double> score, weight;
+};
+
+query_shard make_query_shard(std::size_t r, std::size_t ranks) {
+    query_shard s;
+    if (r == 1 && ranks >= 3)
+        return s;
+    heldout::rng g(23, r);
+    const std::size_t queries = 8 + r;
+    for (std::size_t j = 0; j < queries; ++j) {
+        const auto rows = 1 + static_cast<std::size_t>(g.uniform() * 12.0);
+        const bool none_relevant = j % 4 == 3;
+        for (std::size_t i = 0; i < rows; ++i) {
+            // Odd queries take their rows in turn with the query before them.
+            const auto id = static_cast<long>(1000 * r + ((j % 2 == 1 && i % 2 == 0) ? j - 1 : j));
+            const double u = g.uniform();
+            s.query.push_back(id);
+            s.relevance.push_back(none_relevant ? 0 : static_cast<int>(u * 4.0));
+            s.score.push_back(std::round((u + 0.5 * g.uniform()) * 6.0) / 6.0);
+            s.weight.push_back(0);
+        }
+    }
+    // One weight per query (equal on its rows).
+    for (std::size_t i = 0; i < s.query.size(); ++i)
+        s.weight[i] = 0.25 * static_cast<double>(s.query[i] % 7 + 1);
+    return s;
+}
+
+// Censored shard r: times on a grid (tied times, across shards too), about a third censored,
+// a risk score, the survival probability at t = 2 and curves at t = 1, 2, 4.
+struct censored_shard {
+    std::vector<double> time, risk, surv2, curves;
+    std::vector<int> event;
+};
+
+censored_shard make_censored_shard(std::size_t r, std::size_t ranks) {
+    censored_shard s;
+    const std::size_t rows = (r == 1 && ranks >= 3) ? 0 : 60 + 17 * r;
+    heldout::rng g(31, r);
+    for (std::size_t i = 0; i < rows; ++i) {
+        const double x = g.uniform();
+        s.time.push_back(std::round((0.2 + 5.0 * g.uniform() * (1.2 - x)) * 8.0) / 8.0);
+        s.event.push_back(g.uniform() < 0.67 ? 1 : 0);
+        s.risk.push_back(std::round(x * 20.0) / 20.0);
+        const double s1 = std::exp(-0.2 * (0.5 + x)), s2 = s1 * s1, s4 = s2 * s2;
+        s.surv2.push_back(s2);
+        s.curves.insert(s.curves.end(), {s1, s2, s4});
+    }
+    return s;
+}
+
+// mpi::evaluate of m on this rank's shard, against heldout::evaluate on the concatenation.
+template <class M, class Shard, class Distributed, class One>
+void check_family(const M& m, const Shard& mine, const Shard& all, Distributed dist, One one) {
+    const double d = dist(m, mine);
+    const double o = one(m, all);
+    expect(std::memcmp(&d, &o, sizeof d) == 0, "evaluate " + m.name() + " = one process bit for bit (" +
+                                                   std::to_string(d) + " vs " + std::to_string(o) + ")");
+}
+
 } // namespace
 
 int main(int argc, char** argv) {
@@ -170,6 +241,116 @@ int main(int argc, char** argv) {
             expect(std::abs(mae - mae_one) <= 1e-12 * mae_one, "weighted evaluate MAE = one process");
         }
 
+        // evaluate, query family: each query on one rank; bit for bit one process.
+        {
+            query_shard all;
+            for (std::size_t r = 0; r < ranks; ++r) {
+                const query_shard q = make_query_shard(r, ranks);
+                all.query.insert(all.query.end(), q.query.begin(), q.query.end());
+                all.relevance.insert(all.relevance.end(), q.relevance.begin(), q.relevance.end());
+                all.score.insert(all.score.end(), q.score.begin(), q.score.end());
+                all.weight.insert(all.weight.end(), q.weight.begin(), q.weight.end());
+            }
+            const query_shard mine = make_query_shard(rank, ranks);
+            auto dist = [&](const auto& m, const query_shard& q) {
+                return heldout::mpi::evaluate(m, heldout::by_query(q.query, q.relevance), q.score, comm);
+            };
+            auto one = [](const auto& m, const query_shard& q) {
+                return heldout::evaluate(m, heldout::by_query(q.query, q.relevance), q.score);
+            };
+            auto dist_w = [&](const auto& m, const query_shard& q) {
+                return heldout::mpi::evaluate(m, heldout::by_query(q.query, q.relevance), q.score, q.weight, comm);
+            };
+            auto one_w = [](const auto& m, const query_shard& q) {
+                return heldout::evaluate(m, heldout::by_query(q.query, q.relevance), q.score, q.weight);
+            };
+            check_family(hm::ndcg{.k = 10}, mine, all, dist, one);
+            check_family(hm::ndcg{.k = 3, .gain = heldout::gain::linear, .no_relevant = heldout::if_no_relevant::zero},
+                         mine, all, dist, one);
+            check_family(hm::dcg{.k = 0}, mine, all, dist, one);
+            check_family(hm::precision_at{.k = 3}, mine, all, dist, one);
+            check_family(hm::recall_at{.k = 5}, mine, all, dist, one);
+            check_family(hm::reciprocal_rank{}, mine, all, dist, one);
+            check_family(hm::average_precision_at{.k = 0}, mine, all, dist, one);
+            check_family(hm::ndcg{.k = 5}, mine, all, dist_w, one_w);
+            check_family(hm::average_precision_at{.k = 4}, mine, all, dist_w, one_w);
+
+            // merge of query states: the left-to-right merge of the shards' states.
+            auto acc = hm::ndcg{.k = 10}.accumulator();
+            if (!mine.query.empty())
+                acc.add(heldout::by_query(mine.query, mine.relevance), mine.score);
+            const auto merged = heldout::mpi::merge(acc, comm);
+            auto single = hm::ndcg{.k = 10}.accumulator();
+            for (std::size_t r = 0; r < ranks; ++r) {
+                const query_shard q = make_query_shard(r, ranks);
+                auto part = hm::ndcg{.k = 10}.accumulator();
+                if (!q.query.empty())
+                    part.add(heldout::by_query(q.query, q.relevance), q.score);
+                single.merge(part);
+            }
+            expect(same_bytes(merged, single), "merge of NDCG states equals the left-to-right merge");
+
+            // A query id on two ranks (rank 0's first query again on the last rank) is an
+            // input_error on every rank naming the query and both ranks.
+            if (ranks > 1) {
+                query_shard q = make_query_shard(rank, ranks);
+                if (rank + 1 == ranks) {
+                    q.query.push_back(0);
+                    q.relevance.push_back(1);
+                    q.score.push_back(0.5);
+                }
+                std::string message;
+                try {
+                    (void)heldout::mpi::evaluate(hm::ndcg{}, heldout::by_query(q.query, q.relevance), q.score, comm);
+                } catch (const heldout::input_error& e) {
+                    message = e.what();
+                }
+                expect(message.find("query 0 has rows on rank 0 and rank " + std::to_string(ranks - 1)) !=
+                           std::string::npos,
+                       "a query split over two ranks is refused naming it (got: " + message + ")");
+            }
+        }
+
+        // evaluate, censored family: bit for bit one process on the concatenated rows.
+        {
+            censored_shard all;
+            for (std::size_t r = 0; r < ranks; ++r) {
+                const censored_shard c = make_censored_shard(r, ranks);
+                all.time.insert(all.time.end(), c.time.begin(), c.time.end());
+                all.event.insert(all.event.end(), c.event.begin(), c.event.end());
+                all.risk.insert(all.risk.end(), c.risk.begin(), c.risk.end());
+                all.surv2.insert(all.surv2.end(), c.surv2.begin(), c.surv2.end());
+                all.curves.insert(all.curves.end(), c.curves.begin(), c.curves.end());
+            }
+            const censored_shard mine = make_censored_shard(rank, ranks);
+            auto risk_d = [&](const auto& m, const censored_shard& c) {
+                return heldout::mpi::evaluate(m, heldout::censored(c.time, c.event), c.risk, comm);
+            };
+            auto risk_1 = [](const auto& m, const censored_shard& c) {
+                return heldout::evaluate(m, heldout::censored(c.time, c.event), c.risk);
+            };
+            check_family(hm::harrell_c{}, mine, all, risk_d, risk_1);
+            check_family(hm::uno_c{.horizon = 3.0}, mine, all, risk_d, risk_1);
+            check_family(hm::auc_at{.time = 2.0}, mine, all, risk_d, risk_1);
+            check_family(
+                hm::brier_at{.time = 2.0}, mine, all,
+                [&](const auto& m, const censored_shard& c) {
+                    return heldout::mpi::evaluate(m, heldout::censored(c.time, c.event), c.surv2, comm);
+                },
+                [](const auto& m, const censored_shard& c) {
+                    return heldout::evaluate(m, heldout::censored(c.time, c.event), c.surv2);
+                });
+            check_family(
+                hm::brier_over{.times = {1.0, 2.0, 4.0}}, mine, all,
+                [&](const auto& m, const censored_shard& c) {
+                    return heldout::mpi::evaluate(m, heldout::censored(c.time, c.event), heldout::rows(c.curves, 3),
+                                                  comm);
+                },
+                [](const auto& m, const censored_shard& c) {
+                    return heldout::evaluate(m, heldout::censored(c.time, c.event), heldout::rows(c.curves, 3));
+                });
+        }
+
         // evaluate_splits: the same aggregator as one process, k-fold and bootstrap plans.
         {
             heldout::rng g(5, 0);
@@ -195,6 +376,13 @@ int main(int argc, char** argv) {
                    "evaluate_splits (k-fold) = one process");
             if (rank == 0)
                 expect(reported == 15, "progress reached 15 of 15 on rank 0");
+
+            // Fewer splits than workers (2 splits, up to 3 workers): a worker without a first
+            // split stops at once, and the result is still the one-process aggregator.
+            const auto two = heldout::kfold{.folds = 2, .seed = 6};
+            expect(describe(heldout::mpi::evaluate_splits(comm, two.splits(n), y, model, hm::mse{}), hm::mse{}) ==
+                       describe(heldout::evaluate_splits(two.splits(n), y, model, hm::mse{}), hm::mse{}),
+                   "evaluate_splits with fewer splits than ranks = one process");
 
             auto prob = [&](std::span<const std::size_t> train, std::span<const std::size_t> test) {
                 auto f = model(train, test);
@@ -225,10 +413,13 @@ int main(int argc, char** argv) {
             }
             expect(thrown, "a failed fit throws remote_error on every rank");
 
-            // A fit that fails on the last rank only (whatever it fits).
+            // A fit that fails on the last rank only (whatever it fits). Each worker starts on a
+            // split of its own without asking (worker w on split w - 1), so the last rank fits
+            // one however late it starts; the others' fits are slowed (50 ms each) as well.
             auto fails_last = [&](std::span<const std::size_t> train, std::span<const std::size_t> test) {
                 if (rank + 1 == ranks)
                     throw std::runtime_error("out of memory on this host");
+                std::this_thread::sleep_for(std::chrono::milliseconds(50));
                 return model(train, test);
             };
             thrown = false;

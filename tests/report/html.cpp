@@ -1,6 +1,6 @@
 // Tests for heldout/report/html.hpp and report/numbers.hpp: the self-contained page (every
 // section, figure and caution present, text escaped, nothing external) and the digits rule.
-// The page is also loaded in headless chromium by the ctest report.browser (examples/tool).
+// The page is also loaded in headless chromium by the ctest report.browser (tests/browser).
 #include <heldout/compare/comparison.hpp>
 #include <heldout/estimate/aggregator.hpp>
 #include <heldout/measure/auc.hpp>

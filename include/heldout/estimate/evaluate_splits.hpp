@@ -23,6 +23,15 @@
 // also fitted on all rows and scored on all rows, fit_predict(all, all), and recorded with
 // record_apparent, which the .632 estimators need (turn off with .apparent = false); a
 // bootstrap replicate without out-of-bag rows is not fitted and is counted in skipped().
+//
+// Progress: options.progress(done, total), if set, after every split is fitted (or skipped
+// for want of out-of-bag rows) and after the apparent fit, in fits. total is the number of
+// splits, plus 1 for the apparent fit of a bootstrap plan, when the splits have a size
+// (every plan's range has); for a range without a size, total is 0 until the last call,
+// which repeats done with total = done. done never decreases (it increases by one per call
+// for sized ranges) and the last call has done == total. With threads > 1 the callback is
+// called from the workers as fits finish, one call at a time. It only observes: the
+// aggregator is the same with or without it.
 #pragma once
 
 #include <heldout/core/error.hpp>
@@ -35,6 +44,7 @@
 #include <cstddef>
 #include <exception>
 #include <functional>
+#include <mutex>
 #include <numeric>
 #include <optional>
 #include <ranges>
@@ -52,6 +62,8 @@ struct evaluate_options {
     unsigned threads = 1;         ///< worker threads (0: std::thread::hardware_concurrency())
     bool keep_predictions = true; ///< keep the out-of-fold predictions in the aggregator
     bool apparent = true;         ///< bootstrap plans: also fit_predict(all rows, all rows)
+    /// Called after every fit with (fits done, fits in all); may be left empty. See the header comment.
+    std::function<void(std::size_t done, std::size_t total)> progress{};
 };
 
 namespace detail {
@@ -77,6 +89,36 @@ inline void check_rows(std::span<const std::size_t> rows, std::size_t n, std::st
                     "row " + std::to_string(rows[i]) + " outside the " + std::to_string(n) + " rows of truth", i);
 }
 
+/// Fits done so far, reported to the caller's callback one call at a time.
+struct splits_progress {
+    const std::function<void(std::size_t, std::size_t)>* callback = nullptr;
+    std::optional<std::size_t> splits; // the range's size, when it has one
+    std::size_t total = 0;
+    std::size_t done = 0;
+    bool started = false;
+    std::mutex lock;
+
+    // `apparent` (fits after the splits: 0 or 1) is known once the first split has been seen.
+    void advance(std::size_t apparent) {
+        if (!*callback)
+            return;
+        std::lock_guard<std::mutex> g(lock);
+        if (!started) {
+            total = splits ? *splits + apparent : 0;
+            started = true;
+        }
+        ++done;
+        (*callback)(done, total);
+    }
+    // After the last fit: an unsized range learns its total now.
+    void finish() {
+        if (!*callback || splits)
+            return;
+        std::lock_guard<std::mutex> g(lock);
+        (*callback)(done, done);
+    }
+};
+
 template <class F>
 using fit_result_t =
     std::remove_cvref_t<std::invoke_result_t<F&, std::span<const std::size_t>, std::span<const std::size_t>>>;
@@ -98,11 +140,17 @@ requires std::invocable<F&, std::span<const std::size_t>, std::span<const std::s
     if (threads == 0)
         threads = 1;
 
+    detail::splits_progress progress;
+    progress.callback = &options.progress;
+    if constexpr (std::ranges::sized_range<Splits>)
+        progress.splits = static_cast<std::size_t>(std::ranges::size(splits));
+
     std::vector<E> test_truth;
     bool bootstrap = false;
     std::size_t bootstrap_rows = 0;
     // A bootstrap replicate that drew every row has nothing to score: not fitted, counted.
     auto no_out_of_bag = [](const split& s) { return s.test.empty() && !s.counts.empty(); };
+    auto apparent_fits = [&]() -> std::size_t { return bootstrap && options.apparent ? 1 : 0; };
     auto note_split = [&](const split& s) {
         detail::check_rows(s.train, y.size(), "split.train");
         if (!s.counts.empty()) {
@@ -116,11 +164,13 @@ requires std::invocable<F&, std::span<const std::size_t>, std::span<const std::s
             note_split(s);
             if (no_out_of_bag(s)) {
                 agg.record(s, std::span<const E>(), std::span<const double>()); // counted as skipped
+                progress.advance(apparent_fits());
                 continue;
             }
             detail::gather_truth(y, s.test, test_truth, "split.test");
             const auto predictions = fit_predict(s.train, s.test);
             agg.record(s, test_truth, predictions);
+            progress.advance(apparent_fits());
         }
     } else {
         using R = detail::fit_result_t<F>;
@@ -135,11 +185,11 @@ requires std::invocable<F&, std::span<const std::size_t>, std::span<const std::s
             std::atomic<std::size_t> next{0};
             auto work = [&] {
                 for (std::size_t i = next++; i < batch.size(); i = next++) {
-                    if (no_out_of_bag(batch[i].view()))
-                        continue;
                     try {
-                        results[i].emplace(fit_predict(std::span<const std::size_t>(batch[i].train),
-                                                       std::span<const std::size_t>(batch[i].test)));
+                        if (!no_out_of_bag(batch[i].view()))
+                            results[i].emplace(fit_predict(std::span<const std::size_t>(batch[i].train),
+                                                           std::span<const std::size_t>(batch[i].test)));
+                        progress.advance(apparent_fits());
                     } catch (...) {
                         errors[i] = std::current_exception();
                     }
@@ -185,7 +235,9 @@ requires std::invocable<F&, std::span<const std::size_t>, std::span<const std::s
         std::iota(all.begin(), all.end(), std::size_t{0});
         const auto predictions = fit_predict(std::span<const std::size_t>(all), std::span<const std::size_t>(all));
         agg.record_apparent(y, predictions);
+        progress.advance(apparent_fits());
     }
+    progress.finish();
     return agg;
 }
 

@@ -29,12 +29,21 @@
 // was scored (none added, or none with a relevant item for the measures that need one), or
 // the scored queries have zero total weight. merge() refuses the state of another measure
 // (state_error).
+//
+// State in bytes (heldout::serialize / deserialize, stream/serialize.hpp): the measure's
+// parameters (those of k, gain, no_relevant it has), its name() (the identity: the query
+// measures carry no `key`, so the name, which shows the type and every non-default
+// parameter, is compared on load), then the scored (query, value, weight) triples, the
+// skipped ids, the row count and the weighted flag. check_state() refuses a name that is not
+// the loaded measure's, parameters the measure refuses, values or weights that are negative or
+// not finite, weights other than 1 in an unweighted state, and fewer rows than queries.
 #pragma once
 
 #include <heldout/core/error.hpp>
 #include <heldout/core/traits.hpp>
 #include <heldout/core/values.hpp>
 #include <heldout/detail/query_rank.hpp>
+#include <heldout/detail/state_checks.hpp>
 #include <heldout/detail/sum.hpp>
 #include <heldout/detail/validate.hpp>
 #include <heldout/query/gains.hpp>
@@ -60,6 +69,20 @@ struct query_value {
     double value = 0;
     double weight = 1;
     friend bool operator==(const query_value&, const query_value&) = default;
+
+    /// Serialisation (stream/serialize.hpp): the three fields in order.
+    template <class F>
+    void visit_state(F&& f) {
+        f(query);
+        f(value);
+        f(weight);
+    }
+    template <class F>
+    void visit_state(F&& f) const {
+        f(query);
+        f(value);
+        f(weight);
+    }
 };
 
 namespace detail {
@@ -86,7 +109,8 @@ constexpr bool counts_empty_as_zero(const M& m) {
 template <class M>
 class query_accumulator {
 public:
-    explicit query_accumulator(const M& m) : m_(m) {}
+    query_accumulator() : name_(m_.name()) {}
+    explicit query_accumulator(const M& m) : m_(m), name_(m_.name()) {}
 
     /// Adds a batch of whole queries.
     template <class Q, class R, real_range P>
@@ -147,7 +171,67 @@ public:
     /// Whether a weighted batch was added.
     bool weighted() const noexcept { return weighted_; }
 
+    /// Serialisation: parameters, identity, then the state (see the header comment).
+    template <class F>
+    void visit_state(F&& f) {
+        visit_parameters(m_, f);
+        f(name_);
+        f(scored_);
+        f(skipped_);
+        f(rows_);
+        f(weighted_);
+    }
+    template <class F>
+    void visit_state(F&& f) const {
+        visit_parameters(m_, f);
+        f(name_);
+        f(scored_);
+        f(skipped_);
+        f(rows_);
+        f(weighted_);
+    }
+
+    /// A state read from bytes: every invariant add() and merge() keep.
+    void check_state() const {
+        if constexpr (requires { m_.gain; })
+            if (m_.gain != gain::exponential && m_.gain != gain::linear)
+                detail::fail_loaded("gain", "is not a heldout::gain");
+        if constexpr (requires { m_.no_relevant; })
+            if (m_.no_relevant != if_no_relevant::skip && m_.no_relevant != if_no_relevant::zero)
+                detail::fail_loaded("no_relevant", "is not a heldout::if_no_relevant");
+        detail::check_loaded_parameters("measure", [&] { m_.validate("measure " + m_.name()); });
+        if (name_ != m_.name())
+            detail::fail_loaded("measure", "the bytes hold the state of '" + name_ + "', not of '" + m_.name() + "'");
+        for (std::size_t i = 0; i < scored_.size(); ++i) {
+            const query_value& q = scored_[i];
+            if (!std::isfinite(q.value) || q.value < 0)
+                detail::fail_loaded("per_query",
+                                    "value of element " + std::to_string(i) + " is negative or not finite");
+            if (!std::isfinite(q.weight) || q.weight < 0)
+                detail::fail_loaded("per_query",
+                                    "weight of element " + std::to_string(i) + " is negative or not finite");
+            if (!weighted_ && q.weight != 1)
+                detail::fail_loaded("per_query",
+                                    "weight of element " + std::to_string(i) + " is not 1 in a state without weights");
+        }
+        // Every query has at least one row.
+        if (rows_ < scored_.size() + skipped_.size())
+            detail::fail_loaded("rows", "is " + std::to_string(rows_) + ", fewer than the " +
+                                            std::to_string(scored_.size() + skipped_.size()) + " queries held");
+    }
+
 private:
+    /// The parameters the query measures have (a measure with others would need them here).
+    template <class Me, class F>
+    static void visit_parameters(Me& m, F& f) {
+        if constexpr (requires { m.k; })
+            f(m.k);
+        if constexpr (requires { m.gain; })
+            f(m.gain);
+        if constexpr (requires { m.no_relevant; })
+            f(m.no_relevant);
+    }
+
     template <class Q, class R, class S, class W>
     void add_batch(const query_judgements<Q, R>& truth, std::span<const S> s, std::span<const W> w, bool weighted) {
         static_assert(std::integral<Q>, "heldout: query ids are integers");
@@ -266,7 +350,8 @@ private:
         return static_cast<double>(w0);
     }
 
-    M m_;
+    M m_{};
+    std::string name_; // m_.name(), kept for the bytes (see visit_state)
     std::vector<query_value> scored_;
     std::vector<std::int64_t> skipped_;
     std::size_t rows_ = 0;

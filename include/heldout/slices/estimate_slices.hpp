@@ -233,9 +233,9 @@ std::vector<slice_estimate> estimate_slices(const aggregator& agg, const M& m, c
                 distinct.begin()));
 
     // Classes of the truth (0/1 or class labels): counted over the whole record first.
-    using truth_kind = truth_kind_t<M>;
-    constexpr bool classes = std::is_same_v<truth_kind, kinds::binary> || std::is_same_v<truth_kind, kinds::label>;
-    std::size_t n_classes = std::is_same_v<truth_kind, kinds::binary> ? 2 : 0;
+    using truth_is = truth_kind_t<M>;
+    constexpr bool classes = std::is_same_v<truth_is, kinds::binary> || std::is_same_v<truth_is, kinds::label>;
+    std::size_t n_classes = std::is_same_v<truth_is, kinds::binary> ? 2 : 0;
     std::vector<std::int64_t> class_of_row; // by data row, -1 when not a test row
     if constexpr (classes) {
         class_of_row.assign(max_row + 1, -1);

@@ -11,6 +11,9 @@
 // scores: confusion-matrix measures, AUC) the value also equals evaluate() bit for bit;
 // for floating-point sums it equals evaluate() up to the last bits of the compensated sum.
 // std::thread only (libc++ 14 has no std::jthread); no OpenMP.
+// Progress: o.progress(done, chunks), if set, after every chunk is scored, in chunks; called
+// from the workers, one call at a time, done increasing by one per call up to chunks. It
+// only observes: the value is the same with or without it.
 #pragma once
 
 #include <heldout/core/error.hpp>
@@ -20,6 +23,8 @@
 #include <algorithm>
 #include <cstddef>
 #include <exception>
+#include <functional>
+#include <mutex>
 #include <span>
 #include <string>
 #include <string_view>
@@ -33,6 +38,8 @@ HELDOUT_NAMESPACE_BEGIN
 struct parallel_options {
     std::size_t threads = 0;      ///< worker threads; 0 = std::thread::hardware_concurrency()
     std::size_t chunk = 1u << 16; ///< rows per chunk: fixes the reduction order
+    /// Called after every chunk with (chunks done, chunks); may be left empty.
+    std::function<void(std::size_t done, std::size_t total)> progress{};
 };
 
 namespace detail {
@@ -65,7 +72,7 @@ void for_each_chunk(std::size_t chunks, std::size_t threads, Body&& body) {
 }
 
 template <class M, class T, class P, class W>
-double evaluate_chunked(const M& m, const T& truth, const P& prediction, const W* weights, parallel_options o) {
+double evaluate_chunked(const M& m, const T& truth, const P& prediction, const W* weights, const parallel_options& o) {
     constexpr std::string_view who = "heldout::evaluate_parallel";
     if (o.chunk == 0)
         fail(who, "chunk", "must be positive");
@@ -88,6 +95,8 @@ double evaluate_chunked(const M& m, const T& truth, const P& prediction, const W
     const std::size_t threads = o.threads ? o.threads : std::max(1u, std::thread::hardware_concurrency());
     using A = accumulator_t<M>;
     std::vector<A> parts(chunks, m.accumulator());
+    std::mutex progress_lock;
+    std::size_t chunks_done = 0;
     for_each_chunk(chunks, threads, [&](std::size_t c) {
         const std::size_t first = c * o.chunk;
         const std::size_t count = std::min(o.chunk, n - first);
@@ -99,6 +108,10 @@ double evaluate_chunked(const M& m, const T& truth, const P& prediction, const W
                 parts[c].add(t.subspan(first, count), prediction_slice(prediction, first, count));
         } catch (const input_error& e) {
             rethrow_shifted(e, first); // the index of the whole input, not of the chunk
+        }
+        if (o.progress) {
+            std::lock_guard<std::mutex> g(progress_lock);
+            o.progress(++chunks_done, chunks);
         }
     });
     // Chunk 0 is the start (no copy of it, no merge into an empty accumulator); the others

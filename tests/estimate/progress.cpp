@@ -1,0 +1,272 @@
+// Tests of the progress callbacks on long work: evaluate_splits (serial and threaded, k-fold
+// and bootstrap plans with the apparent fit, a range without a size), the bootstrap intervals
+// (percentile, BCa, paired, AUC's fast path) and evaluate_parallel. Each must count every
+// unit of work, with done increasing and the last call at done == total, and must leave the
+// results bit for bit as they are without it. (Nested CV's progress: tests/estimate/tuning.cpp.)
+#include <heldout/estimate/bootstrap.hpp>
+#include <heldout/estimate/evaluate_splits.hpp>
+#include <heldout/loss/absolute.hpp>
+#include <heldout/measure/auc.hpp>
+#include <heldout/plan/bootstrap.hpp>
+#include <heldout/plan/repeated_kfold.hpp>
+#include <heldout/stream/parallel.hpp>
+
+#include <doctest/doctest.h>
+
+#include <cstddef>
+#include <cstdint>
+#include <functional>
+#include <mutex>
+#include <random>
+#include <ranges>
+#include <span>
+#include <sstream>
+#include <stdexcept>
+#include <string>
+#include <thread>
+#include <utility>
+#include <vector>
+
+namespace measure = heldout::measure;
+using mae = heldout::measure::mean_loss<heldout::loss::absolute>;
+
+namespace {
+
+struct data {
+    std::vector<double> x, y;
+    std::vector<std::uint8_t> label;
+};
+data make(std::size_t n, unsigned seed) {
+    std::mt19937_64 g(seed); // test data only
+    std::normal_distribution<double> d;
+    data D;
+    for (std::size_t i = 0; i < n; ++i) {
+        D.x.push_back(d(g));
+        D.y.push_back(1.0 + 2.0 * D.x.back() + d(g));
+        D.label.push_back(static_cast<std::uint8_t>(D.y.back() > 1.0));
+    }
+    return D;
+}
+
+// Least-squares line y = a + b x fitted on the train rows (duplicates count), predicted on test.
+struct line_fit {
+    const data* D;
+    std::vector<double> operator()(std::span<const std::size_t> train, std::span<const std::size_t> test) const {
+        double sx = 0, sy = 0;
+        for (auto r : train) {
+            sx += D->x[r];
+            sy += D->y[r];
+        }
+        const double n = static_cast<double>(train.size()), mx = sx / n, my = sy / n;
+        double sxy = 0, sxx = 0;
+        for (auto r : train) {
+            sxy += (D->x[r] - mx) * (D->y[r] - my);
+            sxx += (D->x[r] - mx) * (D->x[r] - mx);
+        }
+        const double b = sxy / sxx, a = my - b * mx;
+        std::vector<double> out;
+        for (auto r : test)
+            out.push_back(a + b * D->x[r]);
+        return out;
+    }
+};
+
+// Every value in full precision, and every kept prediction: equal strings = equal bits.
+std::string export_of(const heldout::aggregator& agg) {
+    std::ostringstream os;
+    heldout::write_json(os, {agg.estimate(measure::mse{}), agg.estimate(mae{})});
+    agg.write_predictions_csv(os);
+    return os.str();
+}
+
+/// Splits of a vector handed out one by one, with no size (an input range that cannot say how
+/// many splits it holds until it ends).
+struct unsized_splits {
+    const std::vector<heldout::owned_split>* owned = nullptr;
+    struct iterator {
+        using value_type = heldout::split;
+        using difference_type = std::ptrdiff_t;
+        const heldout::owned_split* at = nullptr;
+        heldout::split operator*() const { return at->view(); }
+        iterator& operator++() {
+            ++at;
+            return *this;
+        }
+        void operator++(int) { ++at; }
+        bool operator==(const iterator&) const = default;
+    };
+    iterator begin() const { return {owned->data()}; }
+    iterator end() const { return {owned->data() + owned->size()}; }
+};
+
+/// The calls a callback saw; safe to call from several threads (the library serialises them
+/// anyway: the lock only keeps the test honest if it did not).
+struct ticks {
+    std::mutex lock;
+    std::vector<std::pair<std::size_t, std::size_t>> calls;
+    std::thread::id thread{};
+    bool one_thread = true;
+    std::function<void(std::size_t, std::size_t)> callback() {
+        return [this](std::size_t done, std::size_t total) {
+            std::lock_guard<std::mutex> g(lock);
+            if (calls.empty())
+                thread = std::this_thread::get_id();
+            one_thread = one_thread && thread == std::this_thread::get_id();
+            calls.emplace_back(done, total);
+        };
+    }
+};
+
+/// done = 1, 2, ..., total, total the same in every call.
+void check_counts_up(const ticks& t, std::size_t total) {
+    REQUIRE(t.calls.size() == total);
+    for (std::size_t i = 0; i < t.calls.size(); ++i) {
+        CHECK(t.calls[i].first == i + 1);
+        CHECK(t.calls[i].second == total);
+    }
+    CHECK(t.calls.back().first == t.calls.back().second);
+}
+
+bool same(const heldout::bootstrap_result& a, const heldout::bootstrap_result& b) {
+    return a.estimate == b.estimate && a.lower == b.lower && a.upper == b.upper && a.level == b.level &&
+           a.method == b.method && a.replicates == b.replicates && a.undefined_replicates == b.undefined_replicates &&
+           a.z0 == b.z0 && a.acceleration == b.acceleration && a.lower_probability == b.lower_probability &&
+           a.upper_probability == b.upper_probability;
+}
+
+} // namespace
+
+TEST_SUITE("estimate/progress") {
+    TEST_CASE("evaluate_splits: one call per split, serial and threaded, results unchanged") {
+        const data D = make(103, 1);
+        const line_fit fit{&D};
+        const auto plan = heldout::repeated_kfold{.folds = 5, .repeats = 4, .seed = 9};
+        const std::string plain =
+            export_of(heldout::evaluate_splits(plan.splits(D.y.size()), D.y, fit, measure::mse{}, mae{}));
+        for (const unsigned threads : {1u, 2u, 3u}) {
+            INFO("threads " << threads);
+            ticks t;
+            const auto agg = heldout::evaluate_splits(
+                plan.splits(D.y.size()), D.y, fit,
+                heldout::evaluate_options{.threads = threads, .progress = t.callback()}, measure::mse{}, mae{});
+            check_counts_up(t, 20);
+            if (threads == 1)
+                CHECK(t.one_thread);
+            CHECK(export_of(agg) == plain);
+        }
+    }
+
+    TEST_CASE("evaluate_splits: a bootstrap plan counts its apparent fit") {
+        const data D = make(40, 2);
+        const line_fit fit{&D};
+        const auto plan = heldout::bootstrap{.replicates = 25, .seed = 3};
+        const auto plain = heldout::evaluate_splits(plan.splits(D.y.size()), D.y, fit, measure::mse{}, mae{});
+        for (const unsigned threads : {1u, 2u}) {
+            for (const bool apparent : {true, false}) {
+                INFO("threads " << threads << ", apparent " << apparent);
+                ticks t;
+                const auto agg = heldout::evaluate_splits(
+                    plan.splits(D.y.size()), D.y, fit,
+                    heldout::evaluate_options{.threads = threads, .apparent = apparent, .progress = t.callback()},
+                    measure::mse{}, mae{});
+                check_counts_up(t, apparent ? 26 : 25);
+                if (apparent)
+                    CHECK(export_of(agg) == export_of(plain));
+            }
+        }
+    }
+
+    TEST_CASE("evaluate_splits: a range without a size learns its total at the end") {
+        const data D = make(60, 4);
+        const line_fit fit{&D};
+        std::vector<heldout::owned_split> owned;
+        for (const heldout::split& s : heldout::repeated_kfold{.folds = 3, .repeats = 2, .seed = 5}.splits(D.y.size()))
+            owned.emplace_back(s);
+        const unsized_splits unsized{&owned};
+        static_assert(!std::ranges::sized_range<decltype(unsized)>);
+        ticks t;
+        const auto agg = heldout::evaluate_splits(
+            unsized, D.y, fit, heldout::evaluate_options{.progress = t.callback()}, measure::mse{}, mae{});
+        REQUIRE(t.calls.size() == 7);
+        for (std::size_t i = 0; i < 6; ++i)
+            CHECK(t.calls[i] == std::make_pair(i + 1, std::size_t{0}));
+        CHECK(t.calls.back() == std::make_pair(std::size_t{6}, std::size_t{6}));
+        CHECK(export_of(agg) == export_of(heldout::evaluate_splits(
+                                    heldout::repeated_kfold{.folds = 3, .repeats = 2, .seed = 5}.splits(D.y.size()),
+                                    D.y, fit, measure::mse{}, mae{})));
+    }
+
+    TEST_CASE("evaluate_splits: an exception from the callback stops the run and reaches the caller") {
+        const data D = make(50, 6);
+        const line_fit fit{&D};
+        const auto plan = heldout::repeated_kfold{.folds = 5, .repeats = 1, .seed = 1};
+        for (const unsigned threads : {1u, 2u}) {
+            const auto stop = [](std::size_t done, std::size_t) {
+                if (done == 2)
+                    throw std::runtime_error("cancelled by the user");
+            };
+            CHECK_THROWS_WITH_AS(heldout::evaluate_splits(
+                                     plan.splits(D.y.size()), D.y, fit,
+                                     heldout::evaluate_options{.threads = threads, .progress = stop}, measure::mse{}),
+                                 "cancelled by the user", std::runtime_error);
+        }
+    }
+
+    TEST_CASE("bootstrap intervals: one call per replicate, intervals unchanged") {
+        const data D = make(300, 7);
+        std::vector<double> f, g, score;
+        for (std::size_t i = 0; i < D.y.size(); ++i) {
+            f.push_back(1.0 + 2.0 * D.x[i]);
+            g.push_back(1.1 + 1.7 * D.x[i]);
+            score.push_back(D.x[i]);
+        }
+        const heldout::bootstrap_options plain{.replicates = 150, .seed = 11, .level = 0.9};
+        ticks t;
+        heldout::bootstrap_options with = plain;
+        with.progress = t.callback();
+        auto run = [&](auto&& call) {
+            t.calls.clear();
+            const auto a = call(plain);
+            const auto b = call(with);
+            CHECK(same(a, b));
+            check_counts_up(t, 150);
+            CHECK(t.one_thread);
+        };
+        run([&](const heldout::bootstrap_options& o) {
+            return heldout::bootstrap_percentile(measure::mse{}, D.y, f, o);
+        });
+        run([&](const heldout::bootstrap_options& o) { return heldout::bootstrap_bca(mae{}, D.y, f, o); });
+        run([&](const heldout::bootstrap_options& o) {
+            return heldout::paired_bootstrap_bca(measure::mse{}, D.y, f, g, o);
+        });
+        run([&](const heldout::bootstrap_options& o) {
+            return heldout::paired_bootstrap_percentile(measure::mse{}, D.y, f, g, o);
+        });
+        // AUC's fast path (ranked sample) goes through the same replicate loop
+        run([&](const heldout::bootstrap_options& o) {
+            return heldout::bootstrap_bca(measure::auc{}, D.label, score, o);
+        });
+        t.calls.clear();
+        const auto set = heldout::bootstrap_replicates(measure::mse{}, D.y, f, with);
+        CHECK(set.values == heldout::bootstrap_replicates(measure::mse{}, D.y, f, plain).values);
+        check_counts_up(t, 150);
+    }
+
+    TEST_CASE("evaluate_parallel: one call per chunk, value unchanged") {
+        const data D = make(10'007, 8);
+        std::vector<double> f;
+        for (const double x : D.x)
+            f.push_back(1.0 + 2.0 * x);
+        for (const std::size_t threads : {1u, 2u, 4u}) {
+            INFO("threads " << threads);
+            ticks t;
+            const double plain = heldout::evaluate_parallel(
+                measure::mse{}, D.y, f, heldout::parallel_options{.threads = threads, .chunk = 1000});
+            const double with = heldout::evaluate_parallel(
+                measure::mse{}, D.y, f,
+                heldout::parallel_options{.threads = threads, .chunk = 1000, .progress = t.callback()});
+            CHECK(with == plain);
+            check_counts_up(t, 11); // 10 chunks of 1000 rows and one of 7
+        }
+    }
+}
