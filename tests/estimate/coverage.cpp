@@ -1,4 +1,4 @@
-// A small version of the coverage study (examples/coverage_study.cpp): simulated data whose
+// A small version of the coverage study (examples/coverage/coverage_study.cpp): simulated data whose
 // true generalization error is known, a few hundred replications, and a band wide enough
 // never to flake yet narrow enough that a broken interval (a wrong standard error, the wrong
 // quantile, the wrong dispatch) fails. Seeds are fixed, so the run is deterministic.
