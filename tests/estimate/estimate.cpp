@@ -67,7 +67,7 @@ TEST_SUITE("estimate/estimate") {
         one.per_split = {split_value{0, 0, 0, 800, 1200, 0.87123, ""}};
         std::ostringstream o1;
         o1 << one;
-        CHECK(o1.str() == "AUC 0.8712 [0.848, 0.8935] 90% DeLong, n=1200");
+        CHECK(o1.str() == "AUC 0.8712 [0.848, 0.8935] 90% DeLong, one test set, n=1200");
 
         estimate point;
         point.measure = "classification error";

@@ -181,7 +181,7 @@ inline void write_estimate_json(json_writer& w, const estimate& e) {
 /// One line: [model:] measure, value, [lower, upper], level, method, splits, rows, then each caution.
 ///   "MSE 0.4123 [0.3712, 0.4551] 95% corrected t (Nadeau-Bengio), 50 splits, n=5000"
 ///   "ridge: MSE 0.4123 [0.3712, 0.4551] 95% ..."                       (a named model)
-///   "AUC 0.871 [0.848, 0.893] 95% DeLong, n=1200"                    (one test set)
+///   "AUC 0.871 [0.848, 0.893] 95% DeLong, one test set, n=1200"
 ///   "error rate 0.1872 (.632+ bootstrap, point estimate), 200 splits, n=7350"
 inline std::ostream& operator<<(std::ostream& os, const estimate& e) {
     std::string s =
@@ -198,6 +198,8 @@ inline std::ostream& operator<<(std::ostream& os, const estimate& e) {
         if (e.splits != recorded)
             s += std::to_string(e.splits) + " of ";
         s += std::to_string(recorded) + (recorded == 1 ? " split" : " splits");
+    } else if (recorded == 1) {
+        s += ", one test set";
     }
     s += ", n=" + std::to_string(e.observations);
     for (const auto& c : e.cautions)
