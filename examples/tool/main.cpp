@@ -572,7 +572,7 @@ report evaluate_all(const dataset& d, const options& o, std::vector<measure_entr
                 rep.estimates.push_back(std::move(r));
                 if (e.unit_bounded)
                     clip_to_unit(rep.estimates.back(), rep);
-            } catch (const heldout::undefined_error& err) {
+            } catch (const heldout::input_error& err) { // undefined, or no method applies (the reason)
                 unit_note(e, md.name, std::string("no estimate: ") + err.what());
             }
         }
@@ -599,7 +599,7 @@ report evaluate_all(const dataset& d, const options& o, std::vector<measure_entr
                         c = e.compare(aggs[i].at(e.ch), aggs[j].at(e.ch), o.level);
                     }
                     pairs.push_back({e.key, std::move(c)});
-                } catch (const heldout::undefined_error& err) {
+                } catch (const heldout::input_error& err) { // undefined, or no method applies
                     rep.notes.push_back(e.name + ", " + a.name + " vs " + b.name + ": no comparison: " + err.what());
                 }
             }
@@ -850,6 +850,8 @@ void print_text(const dataset& d, const std::string& shown, const options& o, co
         wm = std::max(wm, m.name.size());
     for (const auto& r : rep.estimates)
         wq = std::max(wq, r.e.measure.size());
+    for (const auto& r : rep.comparisons)
+        wq = std::max(wq, r.c.measure.size());
     std::cout << "  " << pad("model", wm) << "  " << pad("measure", wq) << "  " << pad("value", 8) << "  "
               << pad("interval", 18) << "  method\n";
     for (const auto& r : rep.estimates) {
@@ -867,14 +869,14 @@ void print_text(const dataset& d, const std::string& shown, const options& o, co
         for (const auto& c : rep.comparisons)
             wp = std::max(wp, c.c.model_a.size() + c.c.model_b.size() + 4);
         std::cout << "  " << pad("pair", wp) << "  " << pad("measure", wq) << "  " << pad("diff.", 8) << "  "
-                  << pad("interval", 18) << "  " << pad("statistic", 14) << "  " << pad("p", 8) << "  "
+                  << pad("interval", 18) << "  " << pad("statistic", 16) << "  " << pad("p", 8) << "  "
                   << pad("Holm p", 8) << "  test\n";
         for (const auto& row : rep.comparisons) {
             const auto& c = row.c;
             std::cout << "  " << pad(c.model_a + " vs " + c.model_b, wp) << "  " << pad(c.measure, wq) << "  "
                       << pad(num::value_text(c.difference, c.lower, c.upper), 8) << "  "
                       << pad(num::interval_text(c.lower, c.upper), 18) << "  "
-                      << pad(statistic_name(c) + " = " + num::number(c.statistic, 3), 14) << "  "
+                      << pad(statistic_name(c) + " = " + num::number(c.statistic, 3), 16) << "  "
                       << pad(num::p_text(c.p_value), 8) << "  "
                       << pad(c.adjusted_p_value ? num::p_text(*c.adjusted_p_value) : "-", 8) << "  " << c.method_label
                       << '\n';
