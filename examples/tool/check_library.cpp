@@ -17,6 +17,7 @@
 #include <heldout/detail/json.hpp>
 #include <heldout/heldout.hpp>
 
+#include <algorithm>
 #include <cmath>
 #include <cstdint>
 #include <iostream>
@@ -115,16 +116,18 @@ void resampled(const M& m, const std::string& key, const data& d, const args& a,
         }
 }
 
-/// One test set, a mean of per-row values: each row scored by evaluate() on its own; t interval
-/// (Wilson for 0/1 values); pairs: McNemar mid-p for 0/1 values, else the difference only
-/// (the paired bootstrap's p is drawn at random).
+/// One test set, a mean of per-row values: each row scored by evaluate() on its own; t interval,
+/// Wilson when every per-row value is 0 or 1 (docs/tool.md, the defaults table); pairs: McNemar
+/// mid-p for 0/1 values, else the difference only (the paired bootstrap's p is drawn at random).
 template <class M, class Row>
-void pointwise(const M& m, const std::string& key, const data& d, const args& a, Row row_value, bool zero_one) {
+void pointwise(const M& m, const std::string& key, const data& d, const args& a, Row row_value) {
     std::vector<std::vector<double>> per(d.names.size());
     const std::size_t rows = d.truth.size();
-    for (std::size_t k = 0; k < d.names.size(); ++k) {
+    for (std::size_t k = 0; k < d.names.size(); ++k)
         for (std::size_t i = 0; i < rows; ++i)
             per[k].push_back(row_value(m, k, i));
+    for (std::size_t k = 0; k < d.names.size(); ++k) {
+        const bool zero_one = std::all_of(per[k].begin(), per[k].end(), [](double x) { return x == 0 || x == 1; });
         if (zero_one) {
             std::uint64_t wrong = 0;
             for (double v : per[k])
@@ -147,7 +150,10 @@ void pointwise(const M& m, const std::string& key, const data& d, const args& a,
                 only_j += per[j][r] == 0 && per[i][r] == 1;
             }
             std::optional<double> p;
-            if (zero_one)
+            const auto is01 = [](const std::vector<double>& v) {
+                return std::all_of(v.begin(), v.end(), [](double x) { return x == 0 || x == 1; });
+            };
+            if (is01(per[i]) && is01(per[j]))
                 p = heldout::mcnemar_test(only_i, only_j, heldout::mcnemar::mid_p).p_value;
             comparison_line(d.names[i], d.names[j], key, (mi - mj) / static_cast<double>(rows), p);
         }
@@ -272,9 +278,9 @@ int main(int argc, char** argv) {
                 return heldout::evaluate(m, std::vector<double>{d.truth[i]}, std::vector<double>{d.pred[k][i]});
             };
             if (key == "mse")
-                split ? resampled(ms::mse{}, key, d, a, score) : pointwise(ms::mse{}, key, d, a, row, false);
+                split ? resampled(ms::mse{}, key, d, a, score) : pointwise(ms::mse{}, key, d, a, row);
             else if (key == "mae")
-                split ? resampled(ms::mae{}, key, d, a, score) : pointwise(ms::mae{}, key, d, a, row, false);
+                split ? resampled(ms::mae{}, key, d, a, score) : pointwise(ms::mae{}, key, d, a, row);
             else if (key == "rmse" && split)
                 resampled(ms::rmse{}, key, d, a, score);
             else if (key == "r2" && split)
@@ -302,13 +308,13 @@ int main(int argc, char** argv) {
             };
             const auto err = heldout::at_threshold(ms::classification_error{}, a.threshold);
             if (key == "error")
-                split ? resampled(err, key, d, a, score) : pointwise(err, key, d, a, row, true);
+                split ? resampled(err, key, d, a, score) : pointwise(err, key, d, a, row);
             else if (key == "brier")
                 split ? resampled(ms::brier_score{}, key, d, a, score)
-                      : pointwise(ms::brier_score{}, key, d, a, row, false);
+                      : pointwise(ms::brier_score{}, key, d, a, row);
             else if (key == "log-loss")
                 split ? resampled(ms::cross_entropy{}, key, d, a, score)
-                      : pointwise(ms::cross_entropy{}, key, d, a, row, false);
+                      : pointwise(ms::cross_entropy{}, key, d, a, row);
             else if (key == "auc" && split)
                 resampled(ms::auc{}, key, d, a, score);
             else if (key == "auc") {
@@ -354,13 +360,13 @@ int main(int argc, char** argv) {
             };
             if (key == "error")
                 split ? resampled(ms::classification_error{}, key, d, a, lscore)
-                      : pointwise(ms::classification_error{}, key, d, a, lrow, true);
+                      : pointwise(ms::classification_error{}, key, d, a, lrow);
             else if (key == "log-loss")
                 split ? resampled(ms::multiclass_cross_entropy{}, key, d, a, pscore)
-                      : pointwise(ms::multiclass_cross_entropy{}, key, d, a, prow, false);
+                      : pointwise(ms::multiclass_cross_entropy{}, key, d, a, prow);
             else if (key == "brier")
                 split ? resampled(ms::multiclass_brier_score{}, key, d, a, pscore)
-                      : pointwise(ms::multiclass_brier_score{}, key, d, a, prow, false);
+                      : pointwise(ms::multiclass_brier_score{}, key, d, a, prow);
         } else if (a.task == "query") {
             auto run = [&](const auto& m) {
                 if (split) {

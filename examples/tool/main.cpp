@@ -622,8 +622,8 @@ report evaluate_all(const dataset& d, const options& o, std::vector<measure_entr
             n_train += static_cast<double>(train_sizes[s]);
         }
         rep.notes.push_back(
-            "corrected t: n_test = " + heldout::report::significant_text(n_test / static_cast<double>(k)) +
-            " rows per split (mean), n_train = " + heldout::report::significant_text(n_train / static_cast<double>(k)) +
+            "corrected t: n_test = " + heldout::detail::note_number(n_test / static_cast<double>(k)) +
+            " rows per split (mean), n_train = " + heldout::detail::note_number(n_train / static_cast<double>(k)) +
             (o.train_size > 0 ? " (--train-size)" : " ((K - 1) n_test of each split, --folds)"));
     }
     return rep;
