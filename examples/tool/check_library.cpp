@@ -170,7 +170,7 @@ int main(int argc, char** argv) {
             a.task = next();
         else if (v[i] == "--truth")
             a.truth = next();
-        else if (v[i] == "--score")
+        else if (v[i] == "--score" || v[i] == "--prediction")
             a.scores.push_back(next());
         else if (v[i] == "--split")
             a.split = next();
@@ -310,8 +310,7 @@ int main(int argc, char** argv) {
             if (key == "error")
                 split ? resampled(err, key, d, a, score) : pointwise(err, key, d, a, row);
             else if (key == "brier")
-                split ? resampled(ms::brier_score{}, key, d, a, score)
-                      : pointwise(ms::brier_score{}, key, d, a, row);
+                split ? resampled(ms::brier_score{}, key, d, a, score) : pointwise(ms::brier_score{}, key, d, a, row);
             else if (key == "log-loss")
                 split ? resampled(ms::cross_entropy{}, key, d, a, score)
                       : pointwise(ms::cross_entropy{}, key, d, a, row);
@@ -319,7 +318,13 @@ int main(int argc, char** argv) {
                 resampled(ms::auc{}, key, d, a, score);
             else if (key == "auc") {
                 for (std::size_t k = 0; k < d.names.size(); ++k) {
-                    const auto e = heldout::delong_auc(d.y01, d.pred[k], a.level);
+                    std::size_t pos = 0;
+                    for (auto y : d.y01)
+                        pos += y;
+                    // docs/tool.md's defaults table: Newcombe below 30 rows in the smaller class
+                    const bool small = std::min(pos, d.y01.size() - pos) < heldout::delong_small_class;
+                    const auto e = small ? heldout::newcombe_auc_interval(d.y01, d.pred[k], a.level)
+                                         : heldout::delong_auc(d.y01, d.pred[k], a.level);
                     estimate_line(d.names[k], key, e.value, e.lower, e.upper);
                 }
                 for (std::size_t i = 0; i < d.names.size(); ++i)

@@ -73,7 +73,7 @@ struct options {
     std::string event;
     std::vector<std::string> measures;
     std::size_t folds = 0;
-    std::size_t train_size = 0;
+    double train_size = 0;
     double threshold = 0.5;
     double level = 0.95;
     bool json = false;
@@ -511,7 +511,7 @@ report evaluate_all(const dataset& d, const options& o, std::vector<measure_entr
         rows[d.split[r]].push_back(r);
     std::vector<std::size_t> train_sizes(k, 0);
     for (std::size_t s = 0; s < k && rep.resampled; ++s)
-        train_sizes[s] = o.train_size > 0 ? o.train_size : (o.folds - 1) * rows[s].size();
+        train_sizes[s] = o.train_size > 0 ? static_cast<std::size_t>(o.train_size) : (o.folds - 1) * rows[s].size();
 
     const std::size_t nm = d.models.size();
     std::size_t steps = nm + nm * rep.measures.size() + rep.measures.size() * nm * (nm - 1) / 2;
@@ -1044,6 +1044,8 @@ void check_usage(const options& o) {
     if (!o.split.empty() && o.folds == 0 && o.train_size == 0)
         throw usage_error("--split needs --folds K or --train-size N: the corrected t accounts for splits "
                           "that share training rows through n_test/n_train");
+    if (o.train_size != std::floor(o.train_size) || o.train_size > 1e15)
+        throw usage_error("--train-size: " + heldout::report::number(o.train_size) + " is not a whole number of rows");
     if (o.split.empty() && (o.folds != 0 || o.train_size != 0))
         throw usage_error("--folds and --train-size go with --split");
 }
@@ -1080,6 +1082,13 @@ std::vector<measure_entry> chosen_measures(const options& o) {
     return out;
 }
 
+task task_of(const std::string& text) {
+    for (const task k : {task::regression, task::binary, task::multiclass, task::query, task::censored})
+        if (task_name(k) == text)
+            return k;
+    return task::binary; // CLI11 checked the name
+}
+
 void list_measures(task k) {
     std::cout << "Measures of the " << task_name(k) << " task (* = a default):\n";
     for (const auto& h : heldout_tool::measures_of(k))
@@ -1095,13 +1104,9 @@ int main(int argc, char** argv) {
                  "(time-to-event) tasks.",
                  "heldout"};
     app.add_option("FILE", o.file, "CSV file (RFC 4180, header line first); - reads standard input");
-    const std::map<std::string, task> tasks{{"regression", task::regression},
-                                            {"binary", task::binary},
-                                            {"multiclass", task::multiclass},
-                                            {"query", task::query},
-                                            {"censored", task::censored}};
-    app.add_option("--task", o.kind, "regression, binary (the default), multiclass, query or censored")
-        ->transform(CLI::CheckedTransformer(tasks, CLI::ignore_case));
+    std::string task_text = "binary";
+    app.add_option("--task", task_text, "regression, binary (the default), multiclass, query or censored")
+        ->check(CLI::IsMember({"regression", "binary", "multiclass", "query", "censored"}));
     app.add_option("--truth", o.truth,
                    "column of the truth: 0/1 (binary), a real value (regression), a class 0..k-1 (multiclass), a "
                    "graded relevance >= 0 (query)");
@@ -1122,6 +1127,7 @@ int main(int argc, char** argv) {
         app.add_option("--folds", o.folds, "with --split: the splits come from K-fold CV (n_test/n_train = 1/(K-1))")
             ->check(CLI::Range(2, 1000000));
     auto* train_size = app.add_option("--train-size", o.train_size, "with --split: rows each model was fitted on")
+                           ->check(finite_number)
                            ->check(CLI::PositiveNumber);
     folds->excludes(train_size);
     app.add_option("--measure", o.measures,
@@ -1148,6 +1154,7 @@ int main(int argc, char** argv) {
                "internal error.");
     try {
         app.parse(argc, argv);
+        o.kind = task_of(task_text);
     } catch (const CLI::ParseError& e) {
         // --list-measures needs no FILE and no --score: answer it before the required checks
         if (o.list ||
@@ -1155,7 +1162,7 @@ int main(int argc, char** argv) {
             try {
                 app.get_option("--score")->required(false);
                 app.parse(argc, argv);
-                list_measures(o.kind);
+                list_measures(task_of(task_text));
                 finish_stdout();
                 return exit_ok;
             } catch (const CLI::ParseError& e2) {

@@ -103,7 +103,7 @@ heldout_tool_test(clip_resampled_json 0 "\"clipped\": true" JSON SETUP {WORK}/lo
 # hard 0/1 probabilities: every squared error is 0 or 1, so the library's rule (ci::automatic)
 # takes the Wilson interval for the Brier score, as for an error rate; the same numbers from
 # the library's free functions
-heldout_tool_test(brier_zero_one 0 "good +Brier score +[0-9.]+ +\\[[0-9.]+, [0-9.]+\\] +Wilson" LIBRARY SETUP
+heldout_tool_test(brier_zero_one 0 "\"key\": \"brier\", \"measure\": \"Brier score\", [^}]*\"method\": \"wilson\"" LIBRARY SETUP
                   {WORK}/one_error.csv --truth failed --score good)
 
 # ---- every task, against the library --------------------------------------------------
@@ -160,7 +160,9 @@ heldout_tool_test(report_binary 0 "Report written to" REPORT {DATA}/resampled.cs
 heldout_tool_test(report_multiclass 0 "Report written to" REPORT TASKS {WORK}/multiclass.csv --task multiclass
                   --truth y --score vote --score soft --score mlp --split fold --folds 8 --report {WORK}/report.html)
 heldout_tool_test(report_query 0 "Report written to" REPORT TASKS {WORK}/query.csv --task query --query qid
-                  --truth rel --score bm25 --score neural --report {WORK}/report.html)
+                  --truth rel --score bm25 --score neural --split fold --folds 5 --report {WORK}/report.html)
+heldout_tool_test(report_censored 0 "Report written to" REPORT TASKS {WORK}/censored.csv --task censored --time time
+                  --event event --score cox --score forest --split fold --folds 5 --report {WORK}/report.html)
 heldout_tool_test(report_not_writable 3 "report" {DATA}/wide.csv --truth failed --score logistic
                   --report {DATA}/wide.csv/report.html)
 # on a terminal (script(1) gives one) a progress line on standard error; piped, nothing
@@ -169,7 +171,7 @@ heldout_tool_test(progress_terminal 0 "Estimates" TERMINAL {DATA}/resampled.csv 
 
 # ---- usage of the new options (exit code 2) -------------------------------------------
 heldout_tool_test(list_measures 0 "Measures of the query task.*\\* ndcg@10" --list-measures --task query)
-heldout_tool_test(unknown_task 2 "--task" {DATA}/wide.csv --task ranking --truth failed --score logistic)
+heldout_tool_test(unknown_task 2 "--task: ranking not in {regression,binary,multiclass,query,censored}" {DATA}/wide.csv --task ranking --truth failed --score logistic)
 heldout_tool_test(unknown_measure 2 "--measure: 'f1' is not a measure of the binary task \\(it has error, brier"
                   {DATA}/wide.csv --truth failed --score logistic --measure f1)
 heldout_tool_test(bad_cutoff 2 "--measure: 'ndcg@x': the cutoff must be a whole number" TASKS {WORK}/query.csv
