@@ -748,8 +748,11 @@ void write_report(const dataset& d, const options& o, const report& rep, const s
         std::vector<std::string> classes;
         for (std::size_t c = 0; c < d.classes; ++c)
             classes.push_back(std::to_string(c));
-        for (const auto& m : d.models)
-            page.confusion(m.name, y, m.labels, classes);
+        bool first = true; // one section for every model's table
+        for (const auto& m : d.models) {
+            page.confusion(m.name, y, m.labels, classes, first ? "Confusion tables" : "");
+            first = false;
+        }
     }
     if (rep.resampled)
         for (const auto& me : rep.measures) {

@@ -10,6 +10,8 @@
 // for the query measures, a time for the censored ones).
 #pragma once
 
+#include "csv.hpp"
+
 #include <heldout/heldout.hpp>
 
 #include <charconv>
@@ -170,7 +172,7 @@ inline std::vector<measure_help> measures_of(task t) {
 namespace detail {
 inline std::optional<double> parameter_number(std::string_view s) {
     double x = 0;
-    const auto r = std::from_chars(s.data(), s.data() + s.size(), x);
+    const auto r = double_from_chars(s.data(), s.data() + s.size(), x); // csv.hpp: libc++ 14 has no double from_chars
     if (r.ec != std::errc{} || r.ptr != s.data() + s.size() || !std::isfinite(x))
         return std::nullopt;
     return x;
