@@ -81,7 +81,8 @@ concordance_influence concordance_with_influence(const M& m, const censored_time
     return out;
 }
 
-inline double normal_z(double level, std::string_view who) {
+template <class = void>
+double normal_z(double level, std::string_view who) {
     if (!(level > 0 && level < 1))
         fail(who, "level", "must be in (0, 1), got " + number_text(level));
     return boost::math::quantile(boost::math::normal_distribution<double>(), 0.5 + level / 2);

@@ -270,9 +270,10 @@ inline double bootstrap_p_value(std::span<const double> reps) {
 }
 
 /// Fills c from paired bootstrap replicates of the difference (theta = difference on all rows).
-inline void bootstrap_fill(comparison& c, paired::method_id id, double theta, bootstrap_replicate_set& set,
-                           std::span<const double> jackknife_difference, std::size_t replicates, std::uint64_t seed,
-                           double level) {
+template <class = void>
+void bootstrap_fill(comparison& c, paired::method_id id, double theta, bootstrap_replicate_set& set,
+                    std::span<const double> jackknife_difference, std::size_t replicates, std::uint64_t seed,
+                    double level) {
     if (set.values.size() < 2)
         fail_undefined(who, std::to_string(set.undefined) + " of " + std::to_string(replicates) +
                                 " bootstrap replicates are undefined; fewer than 2 remain");
@@ -296,7 +297,8 @@ inline void bootstrap_fill(comparison& c, paired::method_id id, double theta, bo
 }
 
 /// McNemar fields from the two discordant counts.
-inline void mcnemar_fill(comparison& c, paired::method_id id, std::uint64_t only_a, std::uint64_t only_b) {
+template <class = void>
+void mcnemar_fill(comparison& c, paired::method_id id, std::uint64_t only_a, std::uint64_t only_b) {
     const auto r = mcnemar_test(only_a, only_b, mcnemar_variant(id));
     c.statistic = r.statistic;
     c.p_value = r.p_value;
@@ -341,8 +343,9 @@ inline paired::method_id resolve(paired::method_id requested, const record_shape
 }
 
 /// The split methods: corrected t, naive t, 5x2cv t and F over the per-split differences.
-inline void split_methods(comparison& c, paired::method_id id, std::span<const split_record> recs, const track_base& ta,
-                          const track_base& tb, double level) {
+template <class = void>
+void split_methods(comparison& c, paired::method_id id, std::span<const split_record> recs, const track_base& ta,
+                   const track_base& tb, double level) {
     std::vector<double> d;
     double train_sum = 0, test_sum = 0;
     std::size_t left_out = 0, max_fold = 0;

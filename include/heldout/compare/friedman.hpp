@@ -85,7 +85,8 @@ inline void check_alpha(std::string_view caller, double alpha) {
 }
 
 /// P(R <= q) for the range R of k iid standard normals (infinite degrees of freedom).
-inline double studentized_range_cdf_infinite(double q, std::size_t k) {
+template <class = void>
+double studentized_range_cdf_infinite(double q, std::size_t k) {
     if (!(q > 0))
         return 0.0;
     const boost::math::normal_distribution<double> nd;
@@ -111,7 +112,8 @@ inline double studentized_range_cdf_infinite(double q, std::size_t k) {
 
 /// Quantile of the studentized range of `models` iid standard normals with infinite degrees
 /// of freedom: the q with P(R <= q) = probability (computed by quadrature and root finding).
-inline double studentized_range_quantile(std::size_t models, double probability) {
+template <class = void>
+double studentized_range_quantile(std::size_t models, double probability) {
     constexpr std::string_view who = "heldout::studentized_range_quantile";
     if (models < 2)
         detail::fail(who, "models", "need at least 2, got " + std::to_string(models));
@@ -129,7 +131,8 @@ inline double studentized_range_quantile(std::size_t models, double probability)
 
 /// Nemenyi critical difference of average ranks for `models` models over `data_sets` data
 /// sets at family-wise level alpha: q_alpha sqrt(k (k+1) / (6 N)).
-inline double nemenyi_critical_difference(std::size_t models, std::size_t data_sets, double alpha) {
+template <class = void>
+double nemenyi_critical_difference(std::size_t models, std::size_t data_sets, double alpha) {
     constexpr std::string_view who = "heldout::nemenyi_critical_difference";
     if (models < 2)
         detail::fail(who, "models", "need at least 2, got " + std::to_string(models));
@@ -143,7 +146,8 @@ inline double nemenyi_critical_difference(std::size_t models, std::size_t data_s
 
 /// Bonferroni–Dunn critical difference for comparing k - 1 models with one control:
 /// z_{1 - alpha / (2 (k - 1))} sqrt(k (k+1) / (6 N)) (Demšar 2006, section 3.2.2).
-inline double bonferroni_dunn_critical_difference(std::size_t models, std::size_t data_sets, double alpha) {
+template <class = void>
+double bonferroni_dunn_critical_difference(std::size_t models, std::size_t data_sets, double alpha) {
     constexpr std::string_view who = "heldout::bonferroni_dunn_critical_difference";
     if (models < 2)
         detail::fail(who, "models", "need at least 2, got " + std::to_string(models));
@@ -278,7 +282,8 @@ inline std::vector<std::vector<std::size_t>> nemenyi_groups(const std::vector<do
 
 /// A readable table: models from best to worst with their average ranks, the Friedman and
 /// Iman–Davenport statistics, the Nemenyi critical difference at `alpha` and its groups.
-inline void print_rank_table(std::ostream& os, const friedman_result& r, double alpha = 0.05) {
+template <class = void>
+void print_rank_table(std::ostream& os, const friedman_result& r, double alpha = 0.05) {
     detail::cmp::check_alpha("heldout::print_rank_table", alpha);
     std::vector<std::size_t> order(r.models);
     std::iota(order.begin(), order.end(), std::size_t{0});

@@ -79,7 +79,8 @@ inline std::ostream& operator<<(std::ostream& os, const mcnemar_result& r) {
 }
 
 /// McNemar's test from the two discordant counts b (A right, B wrong) and c (A wrong, B right).
-inline mcnemar_result mcnemar_test(std::uint64_t only_a_correct, std::uint64_t only_b_correct, mcnemar variant) {
+template <class = void>
+mcnemar_result mcnemar_test(std::uint64_t only_a_correct, std::uint64_t only_b_correct, mcnemar variant) {
     mcnemar_result r;
     r.only_a_correct = only_a_correct;
     r.only_b_correct = only_b_correct;

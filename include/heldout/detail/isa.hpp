@@ -1,7 +1,7 @@
 // heldout/detail/isa.hpp — the instruction sets hot kernels are cloned for, and the run-time
 // choice among them (x86-64 with GCC or Clang; elsewhere only the baseline exists).
 // Internal: used by detail/pointwise_pass.hpp, detail/ranks.hpp, estimate/delong.hpp and
-// measure/confusion_matrix.hpp.
+// detail/cell_count.hpp.
 //
 //   if (heldout::detail::best_isa() == heldout::detail::isa::avx2) kernel_avx2(...);
 //

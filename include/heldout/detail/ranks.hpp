@@ -40,11 +40,6 @@ namespace detail {
 inline constexpr std::uint32_t label_bit = 0x80000000u;
 inline constexpr std::size_t max_packed_rows = 0x7fffffffu;
 
-/// Doubled midrank of sorted positions start+1 .. start+size (1-based ranks), exact.
-constexpr std::uint64_t doubled_midrank(std::uint64_t start, std::uint64_t size) noexcept {
-    return 2 * start + size + 1;
-}
-
 /// Scores must be float or double: their bit patterns are the sort keys.
 template <class T>
 inline constexpr bool rankable_score_v = std::is_same_v<T, float> || std::is_same_v<T, double>;

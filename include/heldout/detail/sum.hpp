@@ -21,19 +21,24 @@
 HELDOUT_NAMESPACE_BEGIN
 namespace detail {
 
-/// Neumaier's improved Kahan summation (Neumaier 1974, ZAMM 54:39-51).
+/// One step of Neumaier's improved Kahan summation (Neumaier 1974, ZAMM 54:39-51) on a
+/// (sum, carry) pair: the one compensated sum of heldout. Free, so that accumulators can keep
+/// their sums and carries in parallel arrays (serialisable state); the value is sum + carry.
+inline void compensated_add(double& sum, double& carry, double x) noexcept {
+    const double t = sum + x;
+    if (std::abs(sum) >= std::abs(x))
+        carry += (sum - t) + x;
+    else
+        carry += (x - t) + sum;
+    sum = t;
+}
+
+/// A Neumaier-compensated running sum (compensated_add on its own pair).
 struct compensated_sum {
     double sum = 0.0;
     double carry = 0.0;
 
-    void add(double x) noexcept {
-        const double t = sum + x;
-        if (std::abs(sum) >= std::abs(x))
-            carry += (sum - t) + x;
-        else
-            carry += (x - t) + sum;
-        sum = t;
-    }
+    void add(double x) noexcept { compensated_add(sum, carry, x); }
     void merge(const compensated_sum& o) noexcept {
         add(o.sum);
         carry += o.carry;

@@ -41,13 +41,6 @@ void check_finite(std::string_view who, std::string_view arg, std::span<const T>
     }
 }
 
-/// Called after a fused pass found a non-finite sentinel: locate and report the element.
-template <class T>
-[[noreturn]] void report_non_finite(std::string_view who, std::string_view arg, std::span<const T> v) {
-    check_finite(who, arg, v);
-    fail(who, arg, "arithmetic overflow (values too large for double)");
-}
-
 /// Labels must lie in 0..k-1 (k = 0 means "any non-negative label").
 template <class L>
 void check_labels(std::string_view who, std::string_view arg, std::span<const L> v, std::size_t k) {

@@ -66,7 +66,8 @@ void check_proportion(std::string_view who, I k, J n, double level) {
 
 inline double clamp01(double x) { return std::min(1.0, std::max(0.0, x)); }
 
-inline proportion_interval wilson(std::uint64_t k, std::uint64_t n, double level) {
+template <class = void>
+proportion_interval wilson(std::uint64_t k, std::uint64_t n, double level) {
     const double z = two_sided_z(level);
     const double nn = static_cast<double>(n);
     const double p = static_cast<double>(k) / nn;
@@ -83,7 +84,8 @@ inline proportion_interval wilson(std::uint64_t k, std::uint64_t n, double level
     return r;
 }
 
-inline proportion_interval wilson_cc(std::uint64_t k, std::uint64_t n, double level) {
+template <class = void>
+proportion_interval wilson_cc(std::uint64_t k, std::uint64_t n, double level) {
     const double z = two_sided_z(level);
     const double nn = static_cast<double>(n);
     const double p = static_cast<double>(k) / nn;
@@ -102,7 +104,8 @@ inline proportion_interval wilson_cc(std::uint64_t k, std::uint64_t n, double le
     return r;
 }
 
-inline proportion_interval clopper_pearson(std::uint64_t k, std::uint64_t n, double level) {
+template <class = void>
+proportion_interval clopper_pearson(std::uint64_t k, std::uint64_t n, double level) {
     const double a = 1.0 - level;
     const double kk = static_cast<double>(k);
     const double nn = static_cast<double>(n);
@@ -114,7 +117,8 @@ inline proportion_interval clopper_pearson(std::uint64_t k, std::uint64_t n, dou
     return r;
 }
 
-inline proportion_interval agresti_coull(std::uint64_t k, std::uint64_t n, double level) {
+template <class = void>
+proportion_interval agresti_coull(std::uint64_t k, std::uint64_t n, double level) {
     const double z = two_sided_z(level);
     const double z2 = z * z;
     const double nt = static_cast<double>(n) + z2;

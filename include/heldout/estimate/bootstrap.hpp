@@ -154,8 +154,9 @@ inline double acceleration_of(std::span<const double> jack, std::string_view who
     return s3.value() / (6.0 * d * std::sqrt(d));
 }
 
-inline bootstrap_result bca_from_sorted(double theta, std::span<const double> sorted, std::span<const double> jack,
-                                        double level, std::string_view who) {
+template <class = void>
+bootstrap_result bca_from_sorted(double theta, std::span<const double> sorted, std::span<const double> jack,
+                                 double level, std::string_view who) {
     std::size_t less = 0, tied = 0;
     for (double x : sorted) {
         if (bootstrap_tied(x, theta))

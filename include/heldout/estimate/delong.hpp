@@ -32,6 +32,7 @@
 
 #include <heldout/core/capabilities.hpp>
 #include <heldout/core/values.hpp>
+#include <heldout/detail/deferred.hpp>
 #include <heldout/detail/isa.hpp>
 #include <heldout/detail/ranks.hpp>
 
@@ -98,7 +99,9 @@ struct auc_covariance {
     /// in translation units that call it, not in every one that includes heldout.
     template <class Derived>
     auc_contrast_test test(const Eigen::MatrixBase<Derived>& contrast) const {
-        const Eigen::MatrixXd L = contrast;
+        using matrix = detail::deferred_t<Eigen::MatrixXd, Derived>;
+        using vector = detail::deferred_t<Eigen::VectorXd, Derived>;
+        const matrix L = contrast;
         constexpr std::string_view who = "heldout::auc_covariance::test";
         if (L.cols() != auc.size() || L.rows() == 0)
             detail::fail(who, "L",
@@ -106,14 +109,14 @@ struct auc_covariance {
                              std::to_string(L.rows()) + " x " + std::to_string(L.cols()));
         if (!L.allFinite())
             detail::fail(who, "L", "not finite");
-        Eigen::FullPivLU<Eigen::MatrixXd> lu(L);
+        Eigen::FullPivLU<matrix> lu(L);
         if (lu.rank() < L.rows())
             detail::fail(who, "L",
                          "rows are linearly dependent (rank " + std::to_string(lu.rank()) + " < " +
                              std::to_string(L.rows()) + ")");
-        const Eigen::VectorXd la = L * auc;
-        const Eigen::MatrixXd v = L * covariance * L.transpose();
-        Eigen::SelfAdjointEigenSolver<Eigen::MatrixXd> es(v);
+        const vector la = L * auc;
+        const matrix v = L * covariance * L.transpose();
+        Eigen::SelfAdjointEigenSolver<matrix> es(v);
         const double top = es.eigenvalues().cwiseAbs().maxCoeff();
         if (!(es.eigenvalues().minCoeff() > 1e-12 * top) || !(top > 0))
             detail::fail_undefined(who, "L S L' is singular (a contrast with zero variance)");
@@ -126,7 +129,8 @@ struct auc_covariance {
 
 namespace detail {
 
-inline double delong_z(std::string_view who, double level) {
+template <class = void>
+double delong_z(std::string_view who, double level) {
     if (!(level > 0 && level < 1))
         fail(who, "level", "must lie in (0, 1), got " + number_text(level));
     return boost::math::quantile(boost::math::normal(), 0.5 + level / 2);

@@ -96,8 +96,9 @@ struct nested_cv_cell {
 };
 
 /// The interval from per-cell losses, cells ordered repetition by repetition (R K cells).
-inline nested_cv_result nested_cv_interval_from_losses(std::span<const nested_cv_cell> cells, std::size_t folds,
-                                                       double level = 0.95) {
+template <class = void>
+nested_cv_result nested_cv_interval_from_losses(std::span<const nested_cv_cell> cells, std::size_t folds,
+                                                double level = 0.95) {
     constexpr std::string_view who = "heldout::nested_cv_interval_from_losses";
     detail::check_level(who, level);
     if (folds < 3)

@@ -45,7 +45,8 @@ inline double newcombe_variance(double theta, double m, double n) {
 } // namespace detail
 
 /// Newcombe's score-type interval of an AUC a from m positives and n negatives.
-inline auc_estimate newcombe_auc_interval(double a, std::size_t positives, std::size_t negatives, double level = 0.95) {
+template <class = void>
+auc_estimate newcombe_auc_interval(double a, std::size_t positives, std::size_t negatives, double level = 0.95) {
     constexpr std::string_view who = "heldout::newcombe_auc_interval";
     if (!(a >= 0 && a <= 1))
         detail::fail(who, "auc", "must lie in [0, 1], got " + detail::number_text(a));

@@ -48,26 +48,39 @@ inline void check_level(std::string_view who, double level) {
         fail(who, "level", "confidence level " + number_text(level) + " outside (0, 1)");
 }
 
+// The Boost.Math wrappers below, and every function that calls them, are templates with an
+// unused parameter: a non-template inline function would instantiate the Boost quantile and cdf
+// code in every translation unit that includes heldout, used or not (bench/include_cost.sh).
+
 /// Standard normal quantile (Boost.Math).
-inline double normal_quantile(double p) { return boost::math::quantile(boost::math::normal_distribution<double>(), p); }
+template <class = void>
+double normal_quantile(double p) {
+    return boost::math::quantile(boost::math::normal_distribution<double>(), p);
+}
 
 /// Standard normal CDF (Boost.Math).
-inline double normal_cdf(double x) { return boost::math::cdf(boost::math::normal_distribution<double>(), x); }
+template <class = void>
+double normal_cdf(double x) {
+    return boost::math::cdf(boost::math::normal_distribution<double>(), x);
+}
 
 /// z_{1 - (1 - level)/2}, the two-sided normal critical value.
-inline double two_sided_z(double level) {
+template <class = void>
+double two_sided_z(double level) {
     return boost::math::quantile(
         boost::math::complement(boost::math::normal_distribution<double>(), (1.0 - level) / 2));
 }
 
 /// t_{1 - (1 - level)/2, df}, the two-sided Student-t critical value.
-inline double two_sided_t(double level, double df) {
+template <class = void>
+double two_sided_t(double level, double df) {
     return boost::math::quantile(
         boost::math::complement(boost::math::students_t_distribution<double>(df), (1.0 - level) / 2));
 }
 
 /// Two-sided p-value of a t statistic with df degrees of freedom.
-inline double two_sided_t_p(double t, double df) {
+template <class = void>
+double two_sided_t_p(double t, double df) {
     return 2.0 *
            boost::math::cdf(boost::math::complement(boost::math::students_t_distribution<double>(df), std::abs(t)));
 }

@@ -12,7 +12,7 @@
 // with `classes` (k) or leave 0 to infer k from the labels.
 #pragma once
 
-#include <heldout/measure/confusion_matrix.hpp>
+#include <heldout/measure/table_accumulator.hpp>
 
 #include <string>
 #include <string_view>

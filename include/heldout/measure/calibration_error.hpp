@@ -68,15 +68,6 @@ inline std::size_t width_bin(double c, std::size_t m) {
     return i;
 }
 
-/// sum/carry pairs kept in parallel vectors (serialisable state), Neumaier's rule.
-inline void neumaier_add(double& sum, double& carry, double x) {
-    const double t = sum + x;
-    if (std::abs(sum) >= std::abs(x))
-        carry += (sum - t) + x;
-    else
-        carry += (x - t) + sum;
-    sum = t;
-}
 } // namespace detail_calibration
 
 /// Running state of calibration_error and multiclass_calibration_error.
@@ -139,12 +130,12 @@ public:
             o.multiclass_ != multiclass_)
             detail::fail_state(who(), "other", "accumulators with different bins, binning or variant do not merge");
         count_ += o.count_;
-        detail_calibration::neumaier_add(weight_, weight_carry_, o.weight_);
+        detail::compensated_add(weight_, weight_carry_, o.weight_);
         weight_carry_ += o.weight_carry_;
         for (std::size_t m = 0; m < bins_ && !bin_state_.empty(); ++m)
             for (std::size_t q = 0; q < 3; ++q) {
-                detail_calibration::neumaier_add(bin_state_[6 * m + 2 * q], bin_state_[6 * m + 2 * q + 1],
-                                                 o.bin_state_[6 * m + 2 * q]);
+                detail::compensated_add(bin_state_[6 * m + 2 * q], bin_state_[6 * m + 2 * q + 1],
+                                        o.bin_state_[6 * m + 2 * q]);
                 bin_state_[6 * m + 2 * q + 1] += o.bin_state_[6 * m + 2 * q + 1];
             }
         conf_.insert(conf_.end(), o.conf_.begin(), o.conf_.end());
@@ -280,16 +271,16 @@ private:
     }
 
     void put(double c, double h, double w) {
-        detail_calibration::neumaier_add(weight_, weight_carry_, w);
+        detail::compensated_add(weight_, weight_carry_, w);
         if (equal_count()) {
             conf_.push_back(c);
             hit_.push_back(h);
             row_weight_.push_back(w);
         } else {
             const std::size_t m = detail_calibration::width_bin(c, bins_);
-            detail_calibration::neumaier_add(bin_state_[6 * m], bin_state_[6 * m + 1], w);
-            detail_calibration::neumaier_add(bin_state_[6 * m + 2], bin_state_[6 * m + 3], w * c);
-            detail_calibration::neumaier_add(bin_state_[6 * m + 4], bin_state_[6 * m + 5], w * h);
+            detail::compensated_add(bin_state_[6 * m], bin_state_[6 * m + 1], w);
+            detail::compensated_add(bin_state_[6 * m + 2], bin_state_[6 * m + 3], w * c);
+            detail::compensated_add(bin_state_[6 * m + 4], bin_state_[6 * m + 5], w * h);
         }
     }
 
@@ -381,9 +372,9 @@ private:
             // bin = #{m : conf > t_m}; the edges are sorted, so a binary search counts them.
             const std::size_t b =
                 static_cast<std::size_t>(std::lower_bound(edges_.begin(), edges_.end(), conf_[i]) - edges_.begin());
-            detail_calibration::neumaier_add(scratch_[6 * b], scratch_[6 * b + 1], row_weight_[i]);
-            detail_calibration::neumaier_add(scratch_[6 * b + 2], scratch_[6 * b + 3], row_weight_[i] * conf_[i]);
-            detail_calibration::neumaier_add(scratch_[6 * b + 4], scratch_[6 * b + 5], row_weight_[i] * hit_[i]);
+            detail::compensated_add(scratch_[6 * b], scratch_[6 * b + 1], row_weight_[i]);
+            detail::compensated_add(scratch_[6 * b + 2], scratch_[6 * b + 3], row_weight_[i] * conf_[i]);
+            detail::compensated_add(scratch_[6 * b + 4], scratch_[6 * b + 5], row_weight_[i] * hit_[i]);
         }
         return scratch_;
     }

@@ -12,8 +12,12 @@
 // are counted exactly in one fused pass (mismatches and the label range check together).
 #pragma once
 
+#include <heldout/core/measure.hpp>
+#include <heldout/detail/label_scan.hpp>
+#include <heldout/detail/labels.hpp>
 #include <heldout/detail/state_checks.hpp>
-#include <heldout/measure/confusion_matrix.hpp>
+#include <heldout/detail/sum.hpp>
+#include <heldout/detail/validate.hpp>
 
 #include <array>
 #include <cstdint>

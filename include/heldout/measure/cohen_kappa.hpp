@@ -15,7 +15,7 @@
 // non-negative terms sum_i r_i (N - c_i) / N^2, so that "zero" is exact.
 #pragma once
 
-#include <heldout/measure/confusion_matrix.hpp>
+#include <heldout/measure/table_accumulator.hpp>
 
 #include <cmath>
 #include <cstdlib>

@@ -14,7 +14,7 @@
 // it exists for deserialize(), which reads the costs from the bytes.
 #pragma once
 
-#include <heldout/measure/confusion_matrix.hpp>
+#include <heldout/measure/table_accumulator.hpp>
 
 #include <string>
 #include <string_view>

@@ -16,7 +16,7 @@
 // is empty (all truth, or all predictions, in one class) the value is 0/0: undefined_error.
 #pragma once
 
-#include <heldout/measure/confusion_matrix.hpp>
+#include <heldout/measure/table_accumulator.hpp>
 
 #include <cmath>
 #include <string>

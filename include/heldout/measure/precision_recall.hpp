@@ -27,7 +27,7 @@
 // `mean` one undefined class makes the mean undefined.
 #pragma once
 
-#include <heldout/measure/confusion_matrix.hpp>
+#include <heldout/measure/table_accumulator.hpp>
 
 #include <cmath>
 #include <string>
