@@ -159,8 +159,10 @@ inline std::string missing_text(const query_result& other, std::int64_t id) {
 } // namespace detail
 
 /// Compares two rankers on the same queries (see the header comment).
-inline comparison compare_queries(const query_result& a, const query_result& b,
-                                  const query_comparison_options& o = {}) {
+// A template of an unused parameter: the Student-t code it calls (Boost.Math) is compiled only
+// where it is used (include cost, bench/include_cost.sh).
+template <class = void>
+comparison compare_queries(const query_result& a, const query_result& b, const query_comparison_options& o = {}) {
     constexpr std::string_view who = "heldout::compare_queries";
     detail::check_level(who, o.level);
     const paired::method_id id =

@@ -94,7 +94,10 @@ inline bool replicate_mean(std::span<const double> v, std::span<const double> w,
 } // namespace detail
 
 /// An interval for the mean of a query measure over queries (see the header comment).
-inline heldout::estimate estimate_queries(const query_result& r, double level = 0.95, ci::method method = ci::t) {
+// A template of an unused parameter: the Student-t and bootstrap code it calls (Boost.Math)
+// is compiled only where it is used (include cost, bench/include_cost.sh).
+template <class = void>
+heldout::estimate estimate_queries(const query_result& r, double level = 0.95, ci::method method = ci::t) {
     constexpr std::string_view who = "heldout::estimate_queries";
     detail::check_level(who, level);
     const std::size_t q = r.per_query.size();

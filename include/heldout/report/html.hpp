@@ -347,6 +347,9 @@ public:
     /// Iman-Davenport form and the Nemenyi critical difference at `alpha` (Demšar 2006,
     /// compare/friedman.hpp). Splits of one data set share rows, which the test assumes they do
     /// not (it was made for independent data sets): the caption says so.
+    // A template only so that the Friedman and Nemenyi code (Boost.Math) is compiled where
+    // ranks() is used, not in every translation unit that includes the report.
+    template <class = void>
     html_report& ranks(std::span<const estimate> es, direction better, double alpha = 0.05, std::string heading = "") {
         constexpr std::string_view who = "heldout::report::html_report::ranks";
         if (es.size() < 3)
