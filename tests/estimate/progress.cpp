@@ -2,10 +2,13 @@
 // and bootstrap plans with the apparent fit, a range without a size), the bootstrap intervals
 // (percentile, BCa, paired, AUC's fast path) and evaluate_parallel. Each must count every
 // unit of work, with done increasing and the last call at done == total, and must leave the
-// results bit for bit as they are without it. (Nested CV's progress: tests/estimate/tuning.cpp.)
+// results bit for bit as they are without it; nested_cv_interval likewise (nested CV for
+// tuning: tests/estimate/tuning.cpp).
 #include <heldout/estimate/bootstrap.hpp>
 #include <heldout/estimate/evaluate_splits.hpp>
+#include <heldout/estimate/nested_cv.hpp>
 #include <heldout/loss/absolute.hpp>
+#include <heldout/loss/squared.hpp>
 #include <heldout/measure/auc.hpp>
 #include <heldout/plan/bootstrap.hpp>
 #include <heldout/plan/repeated_kfold.hpp>
@@ -268,5 +271,25 @@ TEST_SUITE("estimate/progress") {
             CHECK(with == plain);
             check_counts_up(t, 11); // 10 chunks of 1000 rows and one of 7
         }
+    }
+
+    TEST_CASE("nested_cv_interval: one call per fit (R K^2), interval unchanged") {
+        const data D = make(60, 9);
+        auto fit_predict = [&](std::span<const std::size_t> train, std::span<const std::size_t> test) {
+            double m = 0;
+            for (const std::size_t i : train)
+                m += D.y[i];
+            return std::vector<double>(test.size(), m / static_cast<double>(train.size()));
+        };
+        ticks t;
+        heldout::nested_cv_options o{.folds = 4, .repeats = 3, .level = 0.9, .seed = 2};
+        const auto plain = heldout::nested_cv_interval(fit_predict, D.y, heldout::loss::squared{}, o);
+        o.progress = t.callback();
+        const auto with = heldout::nested_cv_interval(fit_predict, D.y, heldout::loss::squared{}, o);
+        CHECK(with.value == plain.value);
+        CHECK(with.lower == plain.lower);
+        CHECK(with.upper == plain.upper);
+        CHECK(t.one_thread);
+        check_counts_up(t, 3 * 4 * 4);
     }
 }

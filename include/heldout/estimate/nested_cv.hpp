@@ -46,6 +46,7 @@
 #include <cmath>
 #include <cstddef>
 #include <cstdint>
+#include <functional>
 #include <span>
 #include <string>
 #include <string_view>
@@ -60,6 +61,8 @@ struct nested_cv_options {
     std::size_t repeats = 200;
     double level = 0.95;
     std::uint64_t seed = 0;
+    /// Called after every fit with (fits done, R K^2), on the caller's thread; optional.
+    std::function<void(std::size_t done, std::size_t total)> progress{};
 };
 
 /// Which bound of [se_naive, sqrt(K) se_naive] was applied to the standard error.
@@ -228,8 +231,12 @@ nested_cv_result nested_cv_interval(FitPredict&& fit_predict, const T& truth, co
     train.reserve(n);
     std::vector<unsigned char> excluded(n);
     // Fits on train, scores test, appends the losses to out.
+    const std::size_t total_fits = o.repeats * K * K;
+    std::size_t fits_done = 0;
     auto run = [&](std::span<const std::size_t> test, std::vector<double>& out) {
         const auto& pred = fit_predict(std::span<const std::size_t>(train), test);
+        if (o.progress)
+            o.progress(++fits_done, total_fits);
         auto p = values_of(pred, who, "fit_predict result");
         detail::check_same_size(who, "fit_predict result", test.size(), p.size(), "test rows");
         for (std::size_t i = 0; i < test.size(); ++i) {
