@@ -12,7 +12,6 @@
 #include <cstdint>
 #include <limits>
 #include <random>
-#include <regex>
 #include <string>
 #include <vector>
 
@@ -194,13 +193,23 @@ TEST_SUITE("report/plots") {
         CHECK(s.find(">predictions<") != std::string::npos);
         // one histogram bar per bin and model, its height proportional to the bin's count
         // and inside the bin's edges (the bars were once scaled by a guessed plot width)
-        const std::regex bar("<rect x=\"([0-9.]+)\" y=\"([0-9.]+)\" width=\"([0-9.]+)\" height=\"([0-9.]+)\" "
-                             "stroke=\"none\" fill=\"(#[0-9A-F]+)\" opacity=\"0.80\"/>");
+        // (read with find, not std::regex: g++ 12's <regex> trips -Wmaybe-uninitialized under
+        // the sanitizers)
         std::vector<std::array<double, 4>> bars_a, bars_b;
-        for (auto it = std::sregex_iterator(s.begin(), s.end(), bar); it != std::sregex_iterator(); ++it) {
-            const std::array<double, 4> r{std::stod((*it)[1]), std::stod((*it)[2]), std::stod((*it)[3]),
-                                          std::stod((*it)[4])};
-            ((*it)[5] == palette(0) ? bars_a : bars_b).push_back(r);
+        auto attribute = [](const std::string& tag, const std::string& name) {
+            const std::size_t at = tag.find(" " + name + "=\"");
+            REQUIRE(at != std::string::npos);
+            const std::size_t from = at + name.size() + 3;
+            return tag.substr(from, tag.find('"', from) - from);
+        };
+        for (std::size_t at = s.find("<rect "); at != std::string::npos; at = s.find("<rect ", at + 1)) {
+            const std::string tag = s.substr(at, s.find("/>", at) + 2 - at);
+            if (tag.find(" stroke=\"none\"") == std::string::npos ||
+                tag.find(" opacity=\"0.80\"/>") == std::string::npos)
+                continue;
+            const std::array<double, 4> r{std::stod(attribute(tag, "x")), std::stod(attribute(tag, "y")),
+                                          std::stod(attribute(tag, "width")), std::stod(attribute(tag, "height"))};
+            (attribute(tag, "fill") == palette(0) ? bars_a : bars_b).push_back(r);
         }
         REQUIRE(bars_a.size() == b5.size());
         REQUIRE(bars_b.size() == b10.size());
