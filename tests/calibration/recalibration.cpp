@@ -22,10 +22,13 @@ using heldout::measure::calibration_intercept;
 using heldout::measure::calibration_slope;
 
 namespace {
-heldout::split one_test_set(std::size_t n) {
-    std::vector<std::size_t> rows(n);
-    std::iota(rows.begin(), rows.end(), std::size_t{0});
-    return heldout::split{{}, rows, 0, 0, 0, {}, heldout::split_design::random};
+// Owns its rows: a heldout::split only views them (a split over a vector local to this
+// function read freed memory, which ASan found).
+heldout::owned_split one_test_set(std::size_t n) {
+    heldout::owned_split s;
+    s.test.resize(n);
+    std::iota(s.test.begin(), s.test.end(), std::size_t{0});
+    return s;
 }
 double logit(double p) { return std::log(p / (1 - p)); }
 } // namespace
@@ -88,7 +91,7 @@ TEST_SUITE("calibration/recalibration") {
             // ci::automatic on one test set is the Wald interval from the inverse information;
             // R's confint.default uses summary.glm's se (see above), hence 1e-7.
             heldout::aggregator agg(calibration_slope{}, calibration_intercept{});
-            agg.record(one_test_set(p.size()), y, p);
+            agg.record(one_test_set(p.size()).view(), y, p);
             const auto e = agg.estimate(calibration_slope{});
             CHECK(e.method == heldout::ci::method_id::wald);
             CHECK(heldout_test::close(*e.se, se_final[1], 1e-10));
@@ -261,8 +264,8 @@ TEST_SUITE("calibration/recalibration") {
         heldout::aggregator a(calibration_slope{}), b(calibration_slope{});
         a.keep_predictions(false);
         b.keep_predictions(false);
-        a.record(one_test_set(pa.size()), y, pa);
-        b.record(one_test_set(pa.size()), y, pb);
+        a.record(one_test_set(pa.size()).view(), y, pa);
+        b.record(one_test_set(pa.size()).view(), y, pb);
         CHECK_THROWS_AS(heldout::compare(a, b, calibration_slope{}), heldout::input_error);
 
         // early stopping ranks by the distance too
