@@ -401,8 +401,8 @@ inline std::optional<method_id> automatic_choice(const record_shape& r, const me
     auto ok = [&](method_id id) { return unmet_needs(info(id).needs, r, f).empty(); };
     if (r.splits == 1 && !r.bootstrap) {
         const bool small = f.smaller_class > 0 && f.smaller_class < delong_small_class;
-        for (const method_id id : {method_id::wilson, small ? method_id::newcombe : method_id::delong,
-                                   method_id::wald, method_id::t, method_id::bca})
+        for (const method_id id : {method_id::wilson, small ? method_id::newcombe : method_id::delong, method_id::wald,
+                                   method_id::t, method_id::bca})
             if (ok(id))
                 return id;
         return std::nullopt;
