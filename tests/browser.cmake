@@ -9,6 +9,7 @@ heldout_only(browser_sources)
 if(browser_sources)
     add_executable(heldout_report_page ${browser_sources})
     target_link_libraries(heldout_report_page PRIVATE heldout::heldout)
+    target_include_directories(heldout_report_page PRIVATE ${CMAKE_CURRENT_SOURCE_DIR}) # support/
     heldout_dev_target(heldout_report_page)
     add_test(NAME report.browser
              COMMAND ${HELDOUT_PYTHON} ${CMAKE_CURRENT_SOURCE_DIR}/browser/check_report.py

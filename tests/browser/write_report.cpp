@@ -10,6 +10,8 @@
 #include <heldout/plan/repeated_kfold.hpp>
 #include <heldout/report/html.hpp>
 
+#include "support/three_scorers.hpp"
+
 #include <algorithm>
 #include <cstdint>
 #include <exception>
@@ -24,35 +26,12 @@ int main(int argc, char** argv) {
         return 2;
     }
     try {
-        // A risk per row; the three scorers see it with more or less noise (the stump only its side of 0.5).
-        const std::vector<std::string> names{"logistic <IRLS>", "k-NN", "stump"};
-        std::vector<std::uint8_t> y;
-        std::vector<std::vector<double>> p(3);
-        heldout::rng g(2026);
-        for (std::size_t i = 0; i < 400; ++i) {
-            const double risk = g.uniform();
-            y.push_back(static_cast<std::uint8_t>(g.uniform() < risk));
-            p[0].push_back(std::clamp(risk + 0.2 * (g.uniform() - 0.5), 0.0, 1.0));
-            p[1].push_back(std::clamp(risk + 0.5 * (g.uniform() - 0.5), 0.0, 1.0));
-            p[2].push_back(risk > 0.5 ? 0.7 : 0.3);
-        }
-        std::vector<heldout::aggregator> aggs;
-        for (std::size_t m = 0; m < 3; ++m) {
-            aggs.emplace_back(heldout::measure::brier_score{}, heldout::measure::auc{});
-            aggs.back().set_model(names[m]);
-        }
-        for (const heldout::split& s :
-             heldout::repeated_kfold{.folds = 10, .repeats = 10, .seed = 7}.splits(y.size())) {
-            std::vector<std::uint8_t> t;
-            for (const std::size_t r : s.test)
-                t.push_back(y[r]);
-            for (std::size_t m = 0; m < 3; ++m) {
-                std::vector<double> q;
-                for (const std::size_t r : s.test)
-                    q.push_back(p[m][r]);
-                aggs[m].record(s, t, q);
-            }
-        }
+        // 10 x 10-fold CV: 100 splits, the size at which the per-split figures must stay readable.
+        heldout_test::three_scorers d(400, 2026, heldout::repeated_kfold{.folds = 10, .repeats = 10, .seed = 7});
+        const auto& names = d.names;
+        const auto& y = d.y;
+        const auto& p = d.p;
+        const auto& aggs = d.aggs;
         std::vector<heldout::estimate> auc, all;
         for (const auto& a : aggs) {
             auc.push_back(a.estimate(heldout::measure::auc{}));

@@ -15,6 +15,7 @@
 #include <heldout/stream/parallel.hpp>
 
 #include <doctest/doctest.h>
+#include <support/line_data.hpp>
 
 #include <cstddef>
 #include <cstdint>
@@ -35,44 +36,9 @@ using mae = heldout::measure::mean_loss<heldout::loss::absolute>;
 
 namespace {
 
-struct data {
-    std::vector<double> x, y;
-    std::vector<std::uint8_t> label;
-};
-data make(std::size_t n, unsigned seed) {
-    std::mt19937_64 g(seed); // test data only
-    std::normal_distribution<double> d;
-    data D;
-    for (std::size_t i = 0; i < n; ++i) {
-        D.x.push_back(d(g));
-        D.y.push_back(1.0 + 2.0 * D.x.back() + d(g));
-        D.label.push_back(static_cast<std::uint8_t>(D.y.back() > 1.0));
-    }
-    return D;
-}
-
-// Least-squares line y = a + b x fitted on the train rows (duplicates count), predicted on test.
-struct line_fit {
-    const data* D;
-    std::vector<double> operator()(std::span<const std::size_t> train, std::span<const std::size_t> test) const {
-        double sx = 0, sy = 0;
-        for (auto r : train) {
-            sx += D->x[r];
-            sy += D->y[r];
-        }
-        const double n = static_cast<double>(train.size()), mx = sx / n, my = sy / n;
-        double sxy = 0, sxx = 0;
-        for (auto r : train) {
-            sxy += (D->x[r] - mx) * (D->y[r] - my);
-            sxx += (D->x[r] - mx) * (D->x[r] - mx);
-        }
-        const double b = sxy / sxx, a = my - b * mx;
-        std::vector<double> out;
-        for (auto r : test)
-            out.push_back(a + b * D->x[r]);
-        return out;
-    }
-};
+using heldout_test::line_fit;
+using data = heldout_test::line_data;
+data make(std::size_t n, unsigned seed) { return heldout_test::make_line_data(n, seed); }
 
 // Every value in full precision, and every kept prediction: equal strings = equal bits.
 std::string export_of(const heldout::aggregator& agg) {

@@ -11,6 +11,7 @@
 #include <heldout/report/numbers.hpp>
 
 #include "report/xml_check.hpp"
+#include "support/three_scorers.hpp"
 
 #include <doctest/doctest.h>
 
@@ -29,36 +30,8 @@ std::size_t count_of(const std::string& s, const std::string& what) {
 }
 
 /// Three scorers of 200 rows on 2 x 5-fold CV, with kept predictions: data for every section.
-struct three_models {
-    std::vector<std::uint8_t> y;
-    std::vector<std::vector<double>> p;
-    std::vector<heldout::aggregator> aggs;
-    std::vector<std::string> names{"logistic <IRLS>", "k-NN", "stump"};
-    three_models() : p(3) {
-        heldout::rng g(11);
-        for (std::size_t i = 0; i < 200; ++i) {
-            const double risk = g.uniform();
-            y.push_back(static_cast<std::uint8_t>(g.uniform() < risk));
-            p[0].push_back(std::clamp(risk + 0.2 * (g.uniform() - 0.5), 0.0, 1.0));
-            p[1].push_back(std::clamp(risk + 0.5 * (g.uniform() - 0.5), 0.0, 1.0));
-            p[2].push_back(risk > 0.5 ? 0.7 : 0.3);
-        }
-        for (std::size_t m = 0; m < 3; ++m) {
-            aggs.emplace_back(heldout::measure::brier_score{}, heldout::measure::auc{});
-            aggs.back().set_model(names[m]);
-        }
-        for (const heldout::split& s : heldout::repeated_kfold{.folds = 5, .repeats = 2, .seed = 4}.splits(y.size())) {
-            std::vector<std::uint8_t> t;
-            for (const std::size_t r : s.test)
-                t.push_back(y[r]);
-            for (std::size_t m = 0; m < 3; ++m) {
-                std::vector<double> q;
-                for (const std::size_t r : s.test)
-                    q.push_back(p[m][r]);
-                aggs[m].record(s, t, q);
-            }
-        }
-    }
+struct three_models : heldout_test::three_scorers {
+    three_models() : three_scorers(200, 11, heldout::repeated_kfold{.folds = 5, .repeats = 2, .seed = 4}) {}
 };
 } // namespace
 

@@ -26,7 +26,9 @@
 //      Phi( (|delta| sqrt(n) - z_{1-alpha/2} sqrt(psi)) / sqrt(psi - delta^2) ),
 //    and n is the smallest with that at least `power` (Connor's closed form, rounded up).
 // Inputs out of range are an input_error naming the argument; a target needing more than
-// 2^53 rows is refused the same way.
+// 2^53 rows is refused the same way. The functions are templates with an unused parameter so
+// that the Boost normal quantile they call is compiled only where they are used
+// (bench/include_cost.sh).
 #pragma once
 
 #include <heldout/core/error.hpp>
@@ -82,7 +84,8 @@ inline std::uint64_t positives(std::uint64_t n, double prevalence) {
 }
 
 /// Connor's (1987) normal-approximation power of McNemar's test.
-inline double mcnemar_power(double n, double psi, double delta, double alpha) {
+template <class = void>
+double mcnemar_power(double n, double psi, double delta, double alpha) {
     const double za = two_sided_z(1.0 - alpha);
     return normal_cdf((std::abs(delta) * std::sqrt(n) - za * std::sqrt(psi)) / std::sqrt(psi - delta * delta));
 }
@@ -90,7 +93,8 @@ inline double mcnemar_power(double n, double psi, double delta, double alpha) {
 } // namespace detail::planning
 
 /// Smallest n whose Wilson interval at p = expected has half-width <= half_width.
-inline std::uint64_t test_rows_for_proportion(double expected, double half_width, double level = 0.95) {
+template <class = void>
+std::uint64_t test_rows_for_proportion(double expected, double half_width, double level = 0.95) {
     constexpr std::string_view who = "heldout::test_rows_for_proportion";
     if (!(expected >= 0.0 && expected <= 1.0))
         detail::fail(who, "expected", "must lie in [0, 1], got " + detail::number_text(expected));
@@ -103,7 +107,8 @@ inline std::uint64_t test_rows_for_proportion(double expected, double half_width
 }
 
 /// Smallest n whose Hanley-McNeil AUC interval half-width z SE is <= half_width.
-inline std::uint64_t test_rows_for_auc(double expected_auc, double prevalence, double half_width, double level = 0.95) {
+template <class = void>
+std::uint64_t test_rows_for_auc(double expected_auc, double prevalence, double half_width, double level = 0.95) {
     constexpr std::string_view who = "heldout::test_rows_for_auc";
     detail::planning::check_open_unit(who, "expected_auc", expected_auc); // at 0 or 1 the SE is 0
     detail::planning::check_open_unit(who, "prevalence", prevalence);
@@ -121,8 +126,9 @@ inline std::uint64_t test_rows_for_auc(double expected_auc, double prevalence, d
 }
 
 /// Smallest n at which McNemar's test of two classifiers reaches `power` (Connor 1987).
-inline std::uint64_t test_rows_for_paired_error(double discordant_rate, double difference, double alpha = 0.05,
-                                                double power = 0.8) {
+template <class = void>
+std::uint64_t test_rows_for_paired_error(double discordant_rate, double difference, double alpha = 0.05,
+                                         double power = 0.8) {
     constexpr std::string_view who = "heldout::test_rows_for_paired_error";
     if (!(discordant_rate > 0.0 && discordant_rate <= 1.0))
         detail::fail(who, "discordant_rate", "must lie in (0, 1], got " + detail::number_text(discordant_rate));

@@ -183,6 +183,43 @@ inline bool small_sample_interval(ci::method_id id) {
     return id == ci::method_id::wilson || id == ci::method_id::clopper_pearson;
 }
 
+/// The note on a Bonferroni interval (options.simultaneous): each slice at `each`.
+inline std::string simultaneous_note(std::size_t slices, double each, double overall) {
+    return "simultaneous (Bonferroni) interval over " + count_text(slices, "slice") + ": level " + number_text(each) +
+           " each, " + number_text(overall) + " for all together";
+}
+
+/// What both overloads do last: Holm-adjusts the slice-vs-rest p-values (p_values[j] belongs
+/// to slice compared[j]) and marks the worst slice, among those not too small (among all
+/// defined ones when every slice is), with its note. badness(value) orders the slices.
+template <class Badness>
+void finish_slices(std::vector<slice_estimate>& out, const std::vector<std::size_t>& compared,
+                   const std::vector<double>& p_values, Badness&& badness) {
+    if (!p_values.empty()) {
+        const auto adjusted = holm_adjust(p_values);
+        for (std::size_t j = 0; j < compared.size(); ++j)
+            out[compared[j]].versus_rest->adjusted_p_value = adjusted[j];
+    }
+    const std::size_t K = out.size();
+    std::optional<std::size_t> worst;
+    for (const bool strict : {true, false}) {
+        for (std::size_t k = 0; k < K; ++k)
+            if (out[k].undefined.empty() && (!strict || !out[k].too_small) &&
+                (!worst || badness(out[k].estimate.value) > badness(out[*worst].estimate.value)))
+                worst = k;
+        if (worst)
+            break;
+    }
+    if (worst && K > 1) {
+        out[*worst].worst = true;
+        out[*worst].estimate.notes.push_back(
+            "the worst of " + count_text(K, "slice") +
+            ": picking the worst of many is itself optimistic about finding a problem, its value overstates how "
+            "badly this slice would do on new data and its interval does not account for the choice; judge it by "
+            "the Holm-adjusted p-value or by simultaneous (Bonferroni) intervals");
+    }
+}
+
 } // namespace detail::slices
 
 /// One estimate per slice of the test rows, each compared with the rest; see the header comment.
@@ -335,9 +372,7 @@ std::vector<slice_estimate> estimate_slices(const aggregator& agg, const M& m, c
             res.estimate.notes.push_back("undefined on this slice: " + res.undefined);
         }
         if (options.simultaneous)
-            res.estimate.notes.push_back("simultaneous (Bonferroni) interval over " + detail::count_text(K, "slice") +
-                                         ": level " + detail::number_text(level) + " each, " +
-                                         detail::number_text(options.level) + " for all together");
+            res.estimate.notes.push_back(simultaneous_note(K, level, options.level));
         if (res.too_small && res.undefined.empty()) {
             if (!small_sample_interval(res.estimate.method) && res.estimate.has_interval()) {
                 res.estimate.se.reset();
@@ -410,31 +445,7 @@ std::vector<slice_estimate> estimate_slices(const aggregator& agg, const M& m, c
         compared.push_back(k);
         p_values.push_back(c.p_value);
     }
-    if (!p_values.empty()) {
-        const auto adjusted = holm_adjust(p_values);
-        for (std::size_t j = 0; j < compared.size(); ++j)
-            out[compared[j]].versus_rest->adjusted_p_value = adjusted[j];
-    }
-
-    // The worst slice, among those not too small (among all defined ones when every slice is).
-    std::optional<std::size_t> worst;
-    for (const bool strict : {true, false}) {
-        for (std::size_t k = 0; k < K; ++k)
-            if (out[k].undefined.empty() && (!strict || !out[k].too_small) &&
-                (!worst || measure_traits<M>::badness(out[k].estimate.value) >
-                               measure_traits<M>::badness(out[*worst].estimate.value)))
-                worst = k;
-        if (worst)
-            break;
-    }
-    if (worst && K > 1) {
-        out[*worst].worst = true;
-        out[*worst].estimate.notes.push_back(
-            "the worst of " + detail::count_text(K, "slice") +
-            ": picking the worst of many is itself optimistic about finding a problem, its value overstates how "
-            "badly this slice would do on new data and its interval does not account for the choice; judge it by "
-            "the Holm-adjusted p-value or by simultaneous (Bonferroni) intervals");
-    }
+    finish_slices(out, compared, p_values, [](double v) { return measure_traits<M>::badness(v); });
     return out;
 }
 

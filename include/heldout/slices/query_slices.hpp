@@ -29,7 +29,6 @@
 // entry with .undefined set and no interval.
 #pragma once
 
-#include <heldout/compare/holm.hpp>
 #include <heldout/core/error.hpp>
 #include <heldout/core/traits.hpp>
 #include <heldout/core/values.hpp>
@@ -44,7 +43,6 @@
 #include <cstddef>
 #include <cstdint>
 #include <limits>
-#include <optional>
 #include <string>
 #include <string_view>
 #include <utility>
@@ -181,9 +179,7 @@ std::vector<slice_estimate> estimate_slices(const query_result& result, const Q&
             res.estimate.notes.push_back("undefined on this slice: " + res.undefined);
         }
         if (options.simultaneous)
-            res.estimate.notes.push_back("simultaneous (Bonferroni) interval over " + detail::count_text(K, "slice") +
-                                         ": level " + detail::number_text(level) + " each, " +
-                                         detail::number_text(options.level) + " for all together");
+            res.estimate.notes.push_back(simultaneous_note(K, level, options.level));
         if (res.too_small && res.undefined.empty()) {
             if (res.estimate.has_interval()) {
                 res.estimate.se.reset();
@@ -230,31 +226,7 @@ std::vector<slice_estimate> estimate_slices(const query_result& result, const Q&
         compared.push_back(k);
         p_values.push_back(c.p_value);
     }
-    if (!p_values.empty()) {
-        const auto adjusted = holm_adjust(p_values);
-        for (std::size_t j = 0; j < compared.size(); ++j)
-            out[compared[j]].versus_rest->adjusted_p_value = adjusted[j];
-    }
-
-    // The worst slice, among those not too small (among all defined ones when every slice is).
-    std::optional<std::size_t> worst;
-    for (const bool strict : {true, false}) {
-        for (std::size_t k = 0; k < K; ++k)
-            if (out[k].undefined.empty() && (!strict || !out[k].too_small) &&
-                (!worst || query_badness(result.better, out[k].estimate.value) >
-                               query_badness(result.better, out[*worst].estimate.value)))
-                worst = k;
-        if (worst)
-            break;
-    }
-    if (worst && K > 1) {
-        out[*worst].worst = true;
-        out[*worst].estimate.notes.push_back(
-            "the worst of " + detail::count_text(K, "slice") +
-            ": picking the worst of many is itself optimistic about finding a problem, its value overstates how "
-            "badly this slice would do on new data and its interval does not account for the choice; judge it by "
-            "the Holm-adjusted p-value or by simultaneous (Bonferroni) intervals");
-    }
+    finish_slices(out, compared, p_values, [&](double v) { return query_badness(result.better, v); });
     return out;
 }
 
