@@ -10,7 +10,7 @@
 #include <heldout/plan/repeated_kfold.hpp>
 
 #include <doctest/doctest.h>
-#include <support/line_data.hpp>
+#include "support/line_data.hpp"
 
 #include <atomic>
 #include <random>
@@ -27,7 +27,6 @@ namespace {
 
 using heldout_test::line_fit;
 using data = heldout_test::line_data;
-data make(std::size_t n, unsigned seed) { return heldout_test::make_line_data(n, seed); }
 
 std::string export_of(const aggregator& agg) {
     std::ostringstream os;
@@ -41,7 +40,7 @@ std::string export_of(const aggregator& agg) {
 
 TEST_SUITE("estimate/evaluate_splits") {
     TEST_CASE("equals the hand-written loop over the same plan") {
-        const data D = make(97, 1);
+        const data D = heldout_test::make_line_data(97, 1);
         const line_fit fit{&D};
         const auto plan = heldout::repeated_kfold{.folds = 5, .repeats = 3, .seed = 9};
         const aggregator agg = heldout::evaluate_splits(plan.splits(D.y.size()), D.y, fit, measure::mse{}, mae{});
@@ -62,7 +61,7 @@ TEST_SUITE("estimate/evaluate_splits") {
     }
 
     TEST_CASE("identical results for 1, 2 and 3 threads (recorded in split order)") {
-        const data D = make(151, 2);
+        const data D = heldout_test::make_line_data(151, 2);
         std::atomic<int> calls{0};
         auto fit = [&](std::span<const std::size_t> train, std::span<const std::size_t> test) {
             ++calls;
@@ -81,7 +80,7 @@ TEST_SUITE("estimate/evaluate_splits") {
     }
 
     TEST_CASE("an exception from fit_predict reaches the caller, the earliest split's first") {
-        const data D = make(40, 3);
+        const data D = heldout_test::make_line_data(40, 3);
         auto fit = [&](std::span<const std::size_t> train, std::span<const std::size_t> test) {
             if (test.front() % 2 == 0 && train.size() > 0)
                 throw std::runtime_error("fit failed at a split whose first test row is " +
@@ -102,7 +101,7 @@ TEST_SUITE("estimate/evaluate_splits") {
     }
 
     TEST_CASE("rows outside truth and wrong prediction counts are input errors") {
-        const data D = make(10, 4);
+        const data D = heldout_test::make_line_data(10, 4);
         std::vector<std::size_t> train{0, 1, 2}, test{3, 12};
         std::vector<heldout::split> splits{heldout::split{train, test, 0, 0, 0, {}}};
         CHECK_THROWS_WITH_AS(heldout::evaluate_splits(splits, D.y, line_fit{&D}, measure::mse{}),
@@ -121,7 +120,7 @@ TEST_SUITE("estimate/evaluate_splits") {
     }
 
     TEST_CASE("bootstrap plans: the apparent fit is recorded, .632+ is the default") {
-        const data D = make(60, 5);
+        const data D = heldout_test::make_line_data(60, 5);
         std::vector<int> labels;
         for (double v : D.y)
             labels.push_back(v > 1.0 ? 1 : 0);

@@ -15,7 +15,7 @@
 #include <heldout/stream/parallel.hpp>
 
 #include <doctest/doctest.h>
-#include <support/line_data.hpp>
+#include "support/line_data.hpp"
 
 #include <cstddef>
 #include <cstdint>
@@ -38,10 +38,9 @@ namespace {
 
 using heldout_test::line_fit;
 using data = heldout_test::line_data;
-data make(std::size_t n, unsigned seed) { return heldout_test::make_line_data(n, seed); }
 
 // Every value in full precision, and every kept prediction: equal strings = equal bits.
-std::string export_of(const heldout::aggregator& agg) {
+std::string exported(const heldout::aggregator& agg) {
     std::ostringstream os;
     heldout::write_json(os, {agg.estimate(measure::mse{}), agg.estimate(mae{})});
     agg.write_predictions_csv(os);
@@ -107,11 +106,11 @@ bool same(const heldout::bootstrap_result& a, const heldout::bootstrap_result& b
 
 TEST_SUITE("estimate/progress") {
     TEST_CASE("evaluate_splits: one call per split, serial and threaded, results unchanged") {
-        const data D = make(103, 1);
+        const data D = heldout_test::make_line_data(103, 1);
         const line_fit fit{&D};
         const auto plan = heldout::repeated_kfold{.folds = 5, .repeats = 4, .seed = 9};
         const std::string plain =
-            export_of(heldout::evaluate_splits(plan.splits(D.y.size()), D.y, fit, measure::mse{}, mae{}));
+            exported(heldout::evaluate_splits(plan.splits(D.y.size()), D.y, fit, measure::mse{}, mae{}));
         for (const unsigned threads : {1u, 2u, 3u}) {
             INFO("threads " << threads);
             ticks t;
@@ -121,12 +120,12 @@ TEST_SUITE("estimate/progress") {
             check_counts_up(t, 20);
             if (threads == 1)
                 CHECK(t.one_thread);
-            CHECK(export_of(agg) == plain);
+            CHECK(exported(agg) == plain);
         }
     }
 
     TEST_CASE("evaluate_splits: a bootstrap plan counts its apparent fit") {
-        const data D = make(40, 2);
+        const data D = heldout_test::make_line_data(40, 2);
         const line_fit fit{&D};
         const auto plan = heldout::bootstrap{.replicates = 25, .seed = 3};
         const auto plain = heldout::evaluate_splits(plan.splits(D.y.size()), D.y, fit, measure::mse{}, mae{});
@@ -140,13 +139,13 @@ TEST_SUITE("estimate/progress") {
                     measure::mse{}, mae{});
                 check_counts_up(t, apparent ? 26 : 25);
                 if (apparent)
-                    CHECK(export_of(agg) == export_of(plain));
+                    CHECK(exported(agg) == exported(plain));
             }
         }
     }
 
     TEST_CASE("evaluate_splits: a range without a size learns its total at the end") {
-        const data D = make(60, 4);
+        const data D = heldout_test::make_line_data(60, 4);
         const line_fit fit{&D};
         std::vector<heldout::owned_split> owned;
         for (const heldout::split& s : heldout::repeated_kfold{.folds = 3, .repeats = 2, .seed = 5}.splits(D.y.size()))
@@ -160,13 +159,13 @@ TEST_SUITE("estimate/progress") {
         for (std::size_t i = 0; i < 6; ++i)
             CHECK(t.calls[i] == std::make_pair(i + 1, std::size_t{0}));
         CHECK(t.calls.back() == std::make_pair(std::size_t{6}, std::size_t{6}));
-        CHECK(export_of(agg) == export_of(heldout::evaluate_splits(
+        CHECK(exported(agg) == exported(heldout::evaluate_splits(
                                     heldout::repeated_kfold{.folds = 3, .repeats = 2, .seed = 5}.splits(D.y.size()),
                                     D.y, fit, measure::mse{}, mae{})));
     }
 
     TEST_CASE("evaluate_splits: an exception from the callback stops the run and reaches the caller") {
-        const data D = make(50, 6);
+        const data D = heldout_test::make_line_data(50, 6);
         const line_fit fit{&D};
         const auto plan = heldout::repeated_kfold{.folds = 5, .repeats = 1, .seed = 1};
         for (const unsigned threads : {1u, 2u}) {
@@ -182,7 +181,7 @@ TEST_SUITE("estimate/progress") {
     }
 
     TEST_CASE("bootstrap intervals: one call per replicate, intervals unchanged") {
-        const data D = make(300, 7);
+        const data D = heldout_test::make_line_data(300, 7);
         std::vector<double> f, g, score;
         for (std::size_t i = 0; i < D.y.size(); ++i) {
             f.push_back(1.0 + 2.0 * D.x[i]);
@@ -222,7 +221,7 @@ TEST_SUITE("estimate/progress") {
     }
 
     TEST_CASE("evaluate_parallel: one call per chunk, value unchanged") {
-        const data D = make(10'007, 8);
+        const data D = heldout_test::make_line_data(10'007, 8);
         std::vector<double> f;
         for (const double x : D.x)
             f.push_back(1.0 + 2.0 * x);
@@ -240,7 +239,7 @@ TEST_SUITE("estimate/progress") {
     }
 
     TEST_CASE("nested_cv_interval: one call per fit (R K^2), interval unchanged") {
-        const data D = make(60, 9);
+        const data D = heldout_test::make_line_data(60, 9);
         auto fit_predict = [&](std::span<const std::size_t> train, std::span<const std::size_t> test) {
             double m = 0;
             for (const std::size_t i : train)

@@ -8,6 +8,7 @@
 #include <heldout/plan/subsampling.hpp>
 
 #include <doctest/doctest.h>
+#include "support/text.hpp"
 
 #include <map>
 #include <sstream>
@@ -16,7 +17,7 @@
 
 namespace {
 
-bool has(const std::string& s, const std::string& part) { return s.find(part) != std::string::npos; }
+using heldout_test::has;
 
 // 40 rows, y = row index mod 7; the "model" predicts the training mean plus a shift, so two
 // models differ by a known amount on every split.

@@ -62,13 +62,7 @@ bool same_table(const Eigen::MatrixXd& a, const Eigen::MatrixXd& b, double rel =
     return true;
 }
 
-Eigen::MatrixXd row_major(const std::vector<double>& flat, std::size_t k) {
-    Eigen::MatrixXd c(static_cast<Eigen::Index>(k), static_cast<Eigen::Index>(k));
-    for (std::size_t i = 0; i < k; ++i)
-        for (std::size_t j = 0; j < k; ++j)
-            c(static_cast<Eigen::Index>(i), static_cast<Eigen::Index>(j)) = flat[i * k + j];
-    return c;
-}
+using heldout_test::row_major;
 
 // Collects the state through visit_state (the serialisation hook).
 struct state_writer {

@@ -22,13 +22,7 @@ using heldout_test::check_bytes_round_trip;
 using heldout_test::message_of;
 
 namespace {
-Eigen::MatrixXd row_major(const std::vector<double>& flat, std::size_t k) {
-    Eigen::MatrixXd c(static_cast<Eigen::Index>(k), static_cast<Eigen::Index>(k));
-    for (std::size_t i = 0; i < k; ++i)
-        for (std::size_t j = 0; j < k; ++j)
-            c(static_cast<Eigen::Index>(i), static_cast<Eigen::Index>(j)) = flat[i * k + j];
-    return c;
-}
+using heldout_test::row_major;
 } // namespace
 
 TEST_SUITE("measure/cost_weighted_error") {

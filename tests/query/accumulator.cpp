@@ -15,16 +15,16 @@ using heldout::by_query;
 namespace m = heldout::measure;
 
 namespace {
-struct data {
+struct query_rows {
     std::vector<std::int64_t> q;
     std::vector<int> rel;
     std::vector<float> s;
     std::vector<std::size_t> query_start; // first row of each query (contiguous)
 };
 
-data make(std::uint32_t seed, std::size_t queries) {
+query_rows make_queries(std::uint32_t seed, std::size_t queries) {
     std::mt19937 g(seed);
-    data d;
+    query_rows d;
     for (std::size_t i = 0; i < queries; ++i) {
         d.query_start.push_back(d.q.size());
         const std::size_t n = std::uniform_int_distribution<std::size_t>(1, 40)(g);
@@ -39,7 +39,7 @@ data make(std::uint32_t seed, std::size_t queries) {
 }
 
 template <class M>
-void check_shards(const M& measure, const data& d) {
+void check_shards(const M& measure, const query_rows& d) {
     auto one = measure.accumulator();
     one.add(by_query(d.q, d.rel), d.s);
     // Three shards of whole queries, of two batches each.
@@ -66,7 +66,7 @@ void check_shards(const M& measure, const data& d) {
 
 TEST_SUITE("query/accumulator") {
     TEST_CASE("merging shards of whole queries equals one pass, bit for bit, for every query measure") {
-        const auto d = make(31, 300);
+        const auto d = make_queries(31, 300);
         check_shards(m::ndcg{.k = 10}, d);
         check_shards(m::dcg{.k = 0}, d);
         check_shards(m::precision_at{.k = 3}, d);
@@ -76,7 +76,7 @@ TEST_SUITE("query/accumulator") {
     }
 
     TEST_CASE("reset forgets, a bad batch changes nothing, another measure's state is refused") {
-        const auto d = make(5, 20);
+        const auto d = make_queries(5, 20);
         auto acc = m::ndcg{}.accumulator();
         acc.add(by_query(d.q, d.rel), d.s);
         const double v = acc.value();
@@ -94,7 +94,7 @@ TEST_SUITE("query/accumulator") {
     }
 
     TEST_CASE("heldout::evaluate on by_query equals the accumulator's mean") {
-        const auto d = make(9, 50);
+        const auto d = make_queries(9, 50);
         auto acc = m::average_precision_at{.k = 5}.accumulator();
         acc.add(by_query(d.q, d.rel), d.s);
         CHECK(heldout::evaluate(m::average_precision_at{.k = 5}, by_query(d.q, d.rel), d.s) == acc.value());

@@ -12,7 +12,7 @@ using heldout::estimate_queries;
 using heldout::query_result;
 
 namespace {
-query_result result_of(const std::vector<double>& v, const std::vector<double>& w) {
+query_result result_with(const std::vector<double>& v, const std::vector<double>& w) {
     query_result r;
     r.measure = "AP";
     double num = 0, den = 0;
@@ -29,7 +29,7 @@ query_result result_of(const std::vector<double>& v, const std::vector<double>& 
 TEST_SUITE("query/estimate_queries") {
     TEST_CASE("t over queries equals heldout::t_interval on the per-query values (tested against R's qt)") {
         const std::vector<double> v{0.1, 0.9, 0.45, 0.7, 0.33, 1.0, 0.0}, w(7, 1.0);
-        const auto e = estimate_queries(result_of(v, w), 0.9);
+        const auto e = estimate_queries(result_with(v, w), 0.9);
         const auto t = heldout::t_interval(v, 0.9);
         CHECK(e.value == doctest::Approx(t.mean).epsilon(1e-15));
         CHECK(*e.se == doctest::Approx(t.se).epsilon(1e-14));
@@ -39,21 +39,21 @@ TEST_SUITE("query/estimate_queries") {
         CHECK(e.observations == 7);
         CHECK(e.method_label == "Student t over queries; 0 queries with no relevant item skipped");
         // Equal weights other than 1 change nothing.
-        const auto e3 = estimate_queries(result_of(v, std::vector<double>(7, 3.0)), 0.9);
+        const auto e3 = estimate_queries(result_with(v, std::vector<double>(7, 3.0)), 0.9);
         CHECK(*e3.se == doctest::Approx(t.se).epsilon(1e-14));
     }
 
     TEST_CASE("weighted: linearised se of the ratio mean, by hand") {
         // v = [1, 0, 0.5], w = [2, 1, 1]: m = 2.5/4 = 0.625; Σ w²(v-m)² = 4(0.375²) + 0.625² + 0.125² = 0.96875;
         // se = sqrt(3/2 * 0.96875) / 4.
-        const auto e = estimate_queries(result_of({1, 0, 0.5}, {2, 1, 1}));
+        const auto e = estimate_queries(result_with({1, 0, 0.5}, {2, 1, 1}));
         CHECK(e.value == 0.625);
         CHECK(*e.se == doctest::Approx(std::sqrt(1.5 * 0.96875) / 4).epsilon(1e-15));
     }
 
     TEST_CASE("bootstrap over queries = the row bootstrap of the per-query values (same draws, estimate/bootstrap)") {
         const std::vector<double> v{0.1, 0.9, 0.45, 0.7, 0.33, 1.0, 0.0, 0.25, 0.5}, w(9, 1.0);
-        const auto r = result_of(v, w);
+        const auto r = result_with(v, w);
         const auto e = estimate_queries(r, 0.95, heldout::ci::bootstrap_percentile(999, 5));
         // The per-query values as per-row losses of mean_loss with the "value itself" loss (MAE against 0).
         const std::vector<double> zero(v.size(), 0.0);
@@ -67,8 +67,8 @@ TEST_SUITE("query/estimate_queries") {
     }
 
     TEST_CASE("refusals: one query, a method that does not apply, a bad level") {
-        CHECK_THROWS_AS(estimate_queries(result_of({0.5}, {1})), heldout::undefined_error);
-        const auto r = result_of({0.5, 0.2, 0.9}, {1, 1, 1});
+        CHECK_THROWS_AS(estimate_queries(result_with({0.5}, {1})), heldout::undefined_error);
+        const auto r = result_with({0.5, 0.2, 0.9}, {1, 1, 1});
         CHECK_THROWS_AS(estimate_queries(r, 0.95, heldout::ci::corrected_t), heldout::input_error);
         CHECK_THROWS_AS(estimate_queries(r, 1.5), heldout::input_error);
     }

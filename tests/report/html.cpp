@@ -14,6 +14,7 @@
 #include "support/three_scorers.hpp"
 
 #include <doctest/doctest.h>
+#include "support/text.hpp"
 
 #include <cstdint>
 #include <string>
@@ -22,12 +23,7 @@
 using namespace heldout::report;
 
 namespace {
-std::size_t count_of(const std::string& s, const std::string& what) {
-    std::size_t n = 0;
-    for (auto p = s.find(what); p != std::string::npos; p = s.find(what, p + 1))
-        ++n;
-    return n;
-}
+using heldout_test::count_of;
 
 /// Three scorers of 200 rows on 2 x 5-fold CV, with kept predictions: data for every section.
 struct three_models : heldout_test::three_scorers {

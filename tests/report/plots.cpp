@@ -7,6 +7,7 @@
 #include "report/xml_check.hpp"
 
 #include <doctest/doctest.h>
+#include "support/text.hpp"
 
 #include <array>
 #include <cstdint>
@@ -19,12 +20,7 @@ using namespace heldout::report;
 using heldout_test::xml_problem;
 
 namespace {
-std::size_t count_of(const std::string& s, const std::string& what) {
-    std::size_t n = 0;
-    for (auto p = s.find(what); p != std::string::npos; p = s.find(what, p + 1))
-        ++n;
-    return n;
-}
+using heldout_test::count_of;
 } // namespace
 
 TEST_SUITE("report/plots") {

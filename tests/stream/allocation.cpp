@@ -147,11 +147,6 @@ void check_no_allocation(const std::string& label, const M& m, const data& d) {
     CHECK(weighted == 0);
 }
 
-Eigen::MatrixXd costs3() {
-    Eigen::MatrixXd c(3, 3);
-    c << 0, 1, 2, 1, 0, 1, 4, 1, 0;
-    return c;
-}
 } // namespace
 
 TEST_SUITE("stream/allocation") {

@@ -6,6 +6,8 @@
 #include <heldout/core/measure.hpp>
 #include <heldout/core/values.hpp>
 
+#include <Eigen/Core>
+
 #include <cmath>
 #include <concepts>
 #include <cstddef>
@@ -132,6 +134,20 @@ std::vector<double> read(const Acc& acc) {
         const auto t = acc.value();
         return std::vector<double>(t.data(), t.data() + t.size());
     }
+}
+
+/// How the state from another path must agree with one evaluate() over all rows.
+enum class agree {
+    exact,            ///< equal: exact state (counts, carried scores or rows)
+    exact_unweighted, ///< equal without weights (integer counts); weighted sums agree to 1e-12
+    close             ///< floating-point sums merged in another order: 1e-12 relative
+};
+
+/// A 3-class cost matrix with unequal costs (rows: truth, columns: prediction).
+inline Eigen::MatrixXd costs3() {
+    Eigen::MatrixXd c(3, 3);
+    c << 0, 1, 2, 1, 0, 1, 4, 1, 0;
+    return c;
 }
 
 } // namespace stream_cases

@@ -40,12 +40,6 @@ namespace {
 using namespace stream_cases;
 namespace hm = heldout::measure;
 
-enum class agree {
-    exact,            ///< evaluate_parallel == evaluate (exact state: counts, carried scores/rows)
-    exact_unweighted, ///< exact without weights; weighted, 1e-12 relative
-    close             ///< floating-point sums merged in chunk order: 1e-12 relative to evaluate()
-};
-
 /// 1..4 threads give the same bits (chunks of 1000 rows: 13 chunks of 12345 rows, the last
 /// one short); the value matches evaluate() as `how` says. Unweighted and weighted.
 template <input K, class M>
@@ -70,11 +64,6 @@ void check_parallel(const std::string& label, const M& m, const data& d, agree h
     }
 }
 
-Eigen::MatrixXd costs3() {
-    Eigen::MatrixXd c(3, 3);
-    c << 0, 1, 2, 1, 0, 1, 4, 1, 0;
-    return c;
-}
 } // namespace
 
 TEST_SUITE("stream/parallel") {

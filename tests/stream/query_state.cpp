@@ -6,6 +6,7 @@
 #include <heldout/stream/serialize.hpp>
 
 #include <doctest/doctest.h>
+#include "support/text.hpp"
 
 #include <cstdint>
 #include <cstring>
@@ -108,7 +109,7 @@ std::string load_error(const Mirror& mirror) {
     }
     return "no error";
 }
-bool has(const std::string& text, std::string_view part) { return text.find(part) != std::string::npos; }
+using heldout_test::has;
 
 using ndcg_acc = heldout::query_accumulator<hm::ndcg>;
 using precision_acc = heldout::query_accumulator<hm::precision_at>;

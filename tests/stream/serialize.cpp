@@ -81,12 +81,6 @@ namespace hm = heldout::measure;
 
 /// How the value of shards merged after a byte round trip compares with one accumulator
 /// fed every row (the merge after bytes always equals the merge in memory bit for bit).
-enum class agree {
-    exact,            ///< equal: exact state (counts, carried scores or rows)
-    exact_unweighted, ///< equal without weights (integer counts); weighted sums agree to 1e-12
-    close             ///< floating-point sums merged in another order: 1e-12 relative
-};
-
 void check_agreement(const std::vector<double>& got, const std::vector<double>& want, bool exact) {
     REQUIRE(got.size() == want.size());
     for (std::size_t i = 0; i < got.size(); ++i) {

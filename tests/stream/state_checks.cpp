@@ -12,6 +12,7 @@
 #include <heldout/stream/serialize.hpp>
 
 #include <doctest/doctest.h>
+#include "support/text.hpp"
 
 #include <cstdint>
 #include <string>
@@ -98,7 +99,7 @@ std::string load_error(const std::vector<std::byte>& bytes) {
     }
     return "no error";
 }
-bool has(const std::string& text, std::string_view part) { return text.find(part) != std::string::npos; }
+using heldout_test::has;
 } // namespace
 
 TEST_SUITE("stream/state_checks") {

@@ -130,4 +130,13 @@ void check_fresh_merges(const M& m, const std::vector<int>& y, const std::vector
     CHECK(wfull.count() == 2 * n);
     CHECK(wfull.value() == heldout::evaluate(m, y2, s2, w2));
 }
+// A k x k matrix from its entries in row-major order (cost matrices written as they read).
+inline Eigen::MatrixXd row_major(const std::vector<double>& flat, std::size_t k) {
+    Eigen::MatrixXd c(static_cast<Eigen::Index>(k), static_cast<Eigen::Index>(k));
+    for (std::size_t i = 0; i < k; ++i)
+        for (std::size_t j = 0; j < k; ++j)
+            c(static_cast<Eigen::Index>(i), static_cast<Eigen::Index>(j)) = flat[i * k + j];
+    return c;
+}
+
 } // namespace heldout_test
