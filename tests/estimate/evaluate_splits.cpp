@@ -9,8 +9,8 @@
 #include <heldout/plan/kfold.hpp>
 #include <heldout/plan/repeated_kfold.hpp>
 
-#include <doctest/doctest.h>
 #include "support/line_data.hpp"
+#include <doctest/doctest.h>
 
 #include <atomic>
 #include <random>

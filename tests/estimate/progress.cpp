@@ -14,8 +14,8 @@
 #include <heldout/plan/repeated_kfold.hpp>
 #include <heldout/stream/parallel.hpp>
 
-#include <doctest/doctest.h>
 #include "support/line_data.hpp"
+#include <doctest/doctest.h>
 
 #include <cstddef>
 #include <cstdint>
@@ -160,8 +160,8 @@ TEST_SUITE("estimate/progress") {
             CHECK(t.calls[i] == std::make_pair(i + 1, std::size_t{0}));
         CHECK(t.calls.back() == std::make_pair(std::size_t{6}, std::size_t{6}));
         CHECK(exported(agg) == exported(heldout::evaluate_splits(
-                                    heldout::repeated_kfold{.folds = 3, .repeats = 2, .seed = 5}.splits(D.y.size()),
-                                    D.y, fit, measure::mse{}, mae{})));
+                                   heldout::repeated_kfold{.folds = 3, .repeats = 2, .seed = 5}.splits(D.y.size()), D.y,
+                                   fit, measure::mse{}, mae{})));
     }
 
     TEST_CASE("evaluate_splits: an exception from the callback stops the run and reaches the caller") {

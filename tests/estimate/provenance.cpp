@@ -7,8 +7,8 @@
 #include <heldout/measure/auc.hpp>
 #include <heldout/plan/subsampling.hpp>
 
-#include <doctest/doctest.h>
 #include "support/text.hpp"
+#include <doctest/doctest.h>
 
 #include <map>
 #include <sstream>

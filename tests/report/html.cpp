@@ -13,8 +13,8 @@
 #include "report/xml_check.hpp"
 #include "support/three_scorers.hpp"
 
-#include <doctest/doctest.h>
 #include "support/text.hpp"
+#include <doctest/doctest.h>
 
 #include <cstdint>
 #include <string>

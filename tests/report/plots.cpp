@@ -6,8 +6,8 @@
 
 #include "report/xml_check.hpp"
 
-#include <doctest/doctest.h>
 #include "support/text.hpp"
+#include <doctest/doctest.h>
 
 #include <array>
 #include <cstdint>

@@ -5,8 +5,8 @@
 #include <heldout/query.hpp>
 #include <heldout/stream/serialize.hpp>
 
-#include <doctest/doctest.h>
 #include "support/text.hpp"
+#include <doctest/doctest.h>
 
 #include <cstdint>
 #include <cstring>

@@ -11,8 +11,8 @@
 #include <heldout/measure/multiclass_auc.hpp>
 #include <heldout/stream/serialize.hpp>
 
-#include <doctest/doctest.h>
 #include "support/text.hpp"
+#include <doctest/doctest.h>
 
 #include <cstdint>
 #include <string>
