@@ -55,11 +55,11 @@ struct reliability_options {
     double level = 0.95; ///< of the Wilson intervals
 };
 
-/// The non-empty bins of probabilities p (class 1) against 0/1 truth; see the header comment.
+namespace detail {
+/// reliability() with the name errors carry (report::reliability_bins draws the same bins).
 template <value_range T, real_range P>
-std::vector<calibration_bin> reliability(const T& truth, const P& probability, std::size_t bins,
-                                         const reliability_options& options = {}) {
-    constexpr std::string_view who = "heldout::reliability";
+std::vector<calibration_bin> reliability_for(std::string_view who, const T& truth, const P& probability,
+                                             std::size_t bins, const reliability_options& options) {
     const auto t = values_of(truth, who, "truth");
     const auto p = values_of(probability, who, "probability");
     detail::check_nonempty(who, "truth", t.size());
@@ -117,6 +117,14 @@ std::vector<calibration_bin> reliability(const T& truth, const P& probability, s
             {b, left[b], right[b], count[b], sum[b].value() / c, static_cast<double>(ones[b]) / c, w.lower, w.upper});
     }
     return out;
+}
+} // namespace detail
+
+/// The non-empty bins of probabilities p (class 1) against 0/1 truth; see the header comment.
+template <value_range T, real_range P>
+std::vector<calibration_bin> reliability(const T& truth, const P& probability, std::size_t bins,
+                                         const reliability_options& options = {}) {
+    return detail::reliability_for("heldout::reliability", truth, probability, bins, options);
 }
 
 HELDOUT_NAMESPACE_END

@@ -266,22 +266,11 @@ struct reliability_bin {
 template <value_range T, real_range P>
 std::vector<reliability_bin> reliability_bins(const T& truth, const P& probability, std::size_t bins = 10,
                                               double level = 0.95) {
-    constexpr std::string_view who = "heldout::report::reliability_bins";
-    auto t = values_of(truth, who, "truth");
-    auto p = values_of(probability, who, "probability");
-    detail::check_nonempty(who, "truth", t.size());
-    detail::check_same_size(who, "probability", t.size(), p.size());
-    if (bins < 1 || bins > 100000)
-        detail::fail(who, "bins", "must lie in 1..100000");
-    if (!(level > 0 && level < 1))
-        detail::fail(who, "level", "must lie in (0, 1)");
-    for (std::size_t i = 0; i < t.size(); ++i)
-        if (!(t[i] == 0 || t[i] == 1))
-            detail::fail_at(who, "truth", "label outside the classes 0..1", i);
-    detail::check_probabilities(who, "probability", p);
-    // The bins of heldout::reliability (calibration/reliability.hpp), with their Wilson intervals.
+    // The bins of heldout::reliability (calibration/reliability.hpp), with their Wilson
+    // intervals; its checks name this function.
     std::vector<reliability_bin> out;
-    for (const calibration_bin& b : heldout::reliability(truth, probability, bins, {.level = level}))
+    for (const calibration_bin& b : heldout::detail::reliability_for("heldout::report::reliability_bins", truth,
+                                                                     probability, bins, {.level = level}))
         out.push_back({b.index, b.left, b.right, b.count, b.mean_predicted, b.observed, b.lower, b.upper,
                        static_cast<std::size_t>(std::llround(b.observed * static_cast<double>(b.count)))});
     return out;
