@@ -372,6 +372,28 @@ pair_variance delong_pair(std::string_view who, std::span<const L> y, std::span<
     return out;
 }
 
+/// Value a with standard error sqrt(var) (var > 0) and its interval at z: Wald, a +- z se, or
+/// logit, the Wald interval of log(a / (1 - a)) mapped back (needs 0 < a < 1; otherwise
+/// undefined, with `logit_needs` as the reason).
+inline auc_estimate delong_estimate(std::string_view who, double a, double var, double z, double level,
+                                    auc_interval_method method, std::string_view logit_needs) {
+    auc_estimate e;
+    e.value = a;
+    e.se = std::sqrt(var);
+    e.level = level;
+    if (method == auc_interval_method::wald) {
+        e.lower = a - z * e.se;
+        e.upper = a + z * e.se;
+    } else {
+        if (!(a > 0 && a < 1))
+            fail_undefined(who, logit_needs);
+        const double lc = std::log(a / (1 - a)), h = z * e.se / (a * (1 - a));
+        e.lower = 1 / (1 + std::exp(-(lc - h)));
+        e.upper = 1 / (1 + std::exp(-(lc + h)));
+    }
+    return e;
+}
+
 } // namespace detail
 
 /// AUC with its DeLong standard error and a level confidence interval (logit by default).
@@ -403,21 +425,7 @@ auc_estimate delong_auc(const T& truth, const S& scores, double level = 0.95,
     if (!(var > 0))
         detail::fail_undefined(who, "the DeLong variance is zero (AUC = " + detail::number_text(a) +
                                         ": every positive outranks, or ties with, the negatives alike)");
-    auc_estimate e;
-    e.value = a;
-    e.se = std::sqrt(var);
-    e.level = level;
-    if (method == auc_interval_method::wald) {
-        e.lower = a - z * e.se;
-        e.upper = a + z * e.se;
-    } else {
-        if (!(a > 0 && a < 1))
-            detail::fail_undefined(who, "the logit interval needs 0 < AUC < 1");
-        const double c = std::log(a / (1 - a)), h = z * e.se / (a * (1 - a));
-        e.lower = 1 / (1 + std::exp(-(c - h)));
-        e.upper = 1 / (1 + std::exp(-(c + h)));
-    }
-    return e;
+    return detail::delong_estimate(who, a, var, z, level, method, "the logit interval needs 0 < AUC < 1");
 }
 
 /// The DeLong interval of a two-sample U statistic (the ROC AUC, or any measure with
@@ -441,21 +449,8 @@ auc_estimate delong_interval(const Components& c, double level = 0.95,
     if (!(var > 0))
         detail::fail_undefined(who, "the DeLong variance is zero (value " + detail::number_text(a) +
                                         ": every case outranks, or ties with, the controls alike)");
-    auc_estimate e;
-    e.value = a;
-    e.se = std::sqrt(var);
-    e.level = level;
-    if (method == auc_interval_method::wald) {
-        e.lower = a - z * e.se;
-        e.upper = a + z * e.se;
-    } else {
-        if (!(a > 0 && a < 1))
-            detail::fail_undefined(who, "the logit interval needs a value strictly between 0 and 1");
-        const double lc = std::log(a / (1 - a)), h = z * e.se / (a * (1 - a));
-        e.lower = 1 / (1 + std::exp(-(lc - h)));
-        e.upper = 1 / (1 + std::exp(-(lc + h)));
-    }
-    return e;
+    return detail::delong_estimate(who, a, var, z, level, method,
+                                   "the logit interval needs a value strictly between 0 and 1");
 }
 
 /// The DeLong test of the difference of two U statistics on the same cases, from the two

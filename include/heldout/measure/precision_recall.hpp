@@ -201,12 +201,17 @@ inline std::size_t combined_classes(const std::string& who, measure::class_combi
 
 namespace measure {
 
-/// Precision (positive predictive value): TP / (TP + FP).
-struct precision {
+/// Precision, recall or specificity: the one-class rate `Rate` of the confusion table, for the
+/// classes `combination` says (see the header comment). Use the names below.
+template <detail::class_rate Rate>
+struct class_rate_measure {
     static constexpr direction better = direction::higher_is_better;
     static constexpr prediction_kind kind = prediction_kind::label;
     using capabilities = offers<cap::serialisable>;
-    static constexpr std::string_view key = "precision";
+    static constexpr std::string_view key = Rate == detail::class_rate::precision ? "precision"
+                                            : Rate == detail::class_rate::recall  ? "recall"
+                                                                                  : "specificity";
+    static_assert(Rate != detail::class_rate::f, "F-beta is f_beta (it has a parameter of its own)");
     /// Which classes count (binary: labels 0/1 and class `positive`).
     class_combination combination = class_combination::binary;
     /// The class reported under binary and one_vs_rest.
@@ -214,12 +219,12 @@ struct precision {
     /// Number of classes k; 0 infers it from the labels (binary: always 2).
     std::size_t classes = 0;
 
-    bool operator==(const precision&) const = default;
+    bool operator==(const class_rate_measure&) const = default;
     /// "precision (positive class 0, classes 2)": parameters that are not the default show.
-    std::string name() const { return detail::combined_name("precision", combination, positive, classes); }
+    std::string name() const { return detail::combined_name(std::string(key), combination, positive, classes); }
     /// The name in error messages (without the class count).
-    std::string message_name() const { return detail::combined_name("precision", combination, positive); }
-    table_accumulator<precision> accumulator() const { return table_accumulator<precision>(*this); }
+    std::string message_name() const { return detail::combined_name(std::string(key), combination, positive); }
+    table_accumulator<class_rate_measure> accumulator() const { return table_accumulator<class_rate_measure>(*this); }
     /// The value on a given confusion table (rows = true class, columns = predicted).
     double from_table(const Eigen::MatrixXd& table) const {
         const std::string who = "measure " + message_name();
@@ -231,7 +236,7 @@ struct precision {
     }
     /// The value from a table and its margins; `who` names the measure in messages.
     double from_view(const detail::table_view& v, const detail::table_margins& m, std::string_view who) const {
-        return detail::combined_rate(who, detail::class_rate::precision, combination, positive, 1.0, v, m);
+        return detail::combined_rate(who, Rate, combination, positive, 1.0, v, m);
     }
 
     template <class F>
@@ -248,91 +253,12 @@ struct precision {
     }
 };
 
+/// Precision (positive predictive value): TP / (TP + FP).
+using precision = class_rate_measure<detail::class_rate::precision>;
 /// Recall (sensitivity, true positive rate): TP / (TP + FN).
-struct recall {
-    static constexpr direction better = direction::higher_is_better;
-    static constexpr prediction_kind kind = prediction_kind::label;
-    using capabilities = offers<cap::serialisable>;
-    static constexpr std::string_view key = "recall";
-    class_combination combination = class_combination::binary;
-    std::size_t positive = 1;
-    std::size_t classes = 0;
-
-    bool operator==(const recall&) const = default;
-    /// "precision (positive class 0, classes 2)": parameters that are not the default show.
-    std::string name() const { return detail::combined_name("recall", combination, positive, classes); }
-    /// The name in error messages (without the class count).
-    std::string message_name() const { return detail::combined_name("recall", combination, positive); }
-    table_accumulator<recall> accumulator() const { return table_accumulator<recall>(*this); }
-    double from_table(const Eigen::MatrixXd& table) const {
-        const std::string who = "measure " + message_name();
-        const detail::table_view v = detail::view_of_table(who, table);
-        return from_view(v, detail::table_margins(v), who);
-    }
-    std::size_t table_classes() const {
-        return detail::combined_classes("measure " + message_name(), combination, positive, classes);
-    }
-    /// The value from a table and its margins; `who` names the measure in messages.
-    double from_view(const detail::table_view& v, const detail::table_margins& m, std::string_view who) const {
-        return detail::combined_rate(who, detail::class_rate::recall, combination, positive, 1.0, v, m);
-    }
-
-    template <class F>
-    void visit_state(F&& f) {
-        f(combination);
-        f(positive);
-        f(classes);
-    }
-    template <class F>
-    void visit_state(F&& f) const {
-        f(combination);
-        f(positive);
-        f(classes);
-    }
-};
-
+using recall = class_rate_measure<detail::class_rate::recall>;
 /// Specificity (true negative rate): TN / (TN + FP).
-struct specificity {
-    static constexpr direction better = direction::higher_is_better;
-    static constexpr prediction_kind kind = prediction_kind::label;
-    using capabilities = offers<cap::serialisable>;
-    static constexpr std::string_view key = "specificity";
-    class_combination combination = class_combination::binary;
-    std::size_t positive = 1;
-    std::size_t classes = 0;
-
-    bool operator==(const specificity&) const = default;
-    /// "precision (positive class 0, classes 2)": parameters that are not the default show.
-    std::string name() const { return detail::combined_name("specificity", combination, positive, classes); }
-    /// The name in error messages (without the class count).
-    std::string message_name() const { return detail::combined_name("specificity", combination, positive); }
-    table_accumulator<specificity> accumulator() const { return table_accumulator<specificity>(*this); }
-    double from_table(const Eigen::MatrixXd& table) const {
-        const std::string who = "measure " + message_name();
-        const detail::table_view v = detail::view_of_table(who, table);
-        return from_view(v, detail::table_margins(v), who);
-    }
-    std::size_t table_classes() const {
-        return detail::combined_classes("measure " + message_name(), combination, positive, classes);
-    }
-    /// The value from a table and its margins; `who` names the measure in messages.
-    double from_view(const detail::table_view& v, const detail::table_margins& m, std::string_view who) const {
-        return detail::combined_rate(who, detail::class_rate::specificity, combination, positive, 1.0, v, m);
-    }
-
-    template <class F>
-    void visit_state(F&& f) {
-        f(combination);
-        f(positive);
-        f(classes);
-    }
-    template <class F>
-    void visit_state(F&& f) const {
-        f(combination);
-        f(positive);
-        f(classes);
-    }
-};
+using specificity = class_rate_measure<detail::class_rate::specificity>;
 
 /// F-beta: (1 + b^2) TP / ((1 + b^2) TP + b^2 FN + FP); beta > 0 weighs recall beta times
 /// as much as precision (F1: beta = 1).
