@@ -223,7 +223,7 @@ inline mcnemar mcnemar_variant(paired::method_id id) {
     }
 }
 
-inline std::string method_name(paired::method_id id) { return "paired::" + std::string(paired::id_text(id)); }
+inline std::string method_name(paired::method_id id) { return method_text(id); }
 
 /// Two aggregators describe the same splits: same count, and per split the same index,
 /// repeat, fold, sizes and test rows. The first difference is named.
@@ -307,39 +307,6 @@ void mcnemar_fill(comparison& c, paired::method_id id, std::uint64_t only_a, std
     c.notes.push_back("A right and B wrong on " + std::to_string(only_a) + " rows, A wrong and B right on " +
                       std::to_string(only_b) +
                       (only_a + only_b == 0 ? " (no discordant rows: p = 1, statistic 0 by convention)" : ""));
-}
-
-/// "paired::a (the default here), paired::b" — the paired methods that apply.
-inline std::string applicable_text(const record_shape& r, const measure_facts& f) {
-    std::string s;
-    const auto d = paired::automatic_choice(r, f);
-    for (const paired::method_id id : paired::applicable(r, f))
-        s += (s.empty() ? "" : ", ") + method_name(id) + (d && *d == id ? " (the default here)" : "");
-    return s.empty() ? std::string("none") : s;
-}
-
-/// The method to run: the requested one if it applies, paired::automatic's choice, or a
-/// refusal saying why and what applies instead.
-inline paired::method_id resolve(paired::method_id requested, const record_shape& r, const measure_facts& f,
-                                 const std::string& measure) {
-    if (requested == paired::method_id::automatic) {
-        if (const auto d = paired::automatic_choice(r, f))
-            return *d;
-        fail(who, "method",
-             "no paired method has a valid default for " + std::string(to_string(r.design)) + " (" +
-                 count_text(r.splits, "split") + ") and measure " + measure + ": " + std::string(refusal_reason(r)) +
-                 " (docs/compare.md, the rule table). Methods that apply, each with its caution: " +
-                 applicable_text(r, f));
-    }
-    const auto unmet = unmet_needs(paired::info(requested).needs, r, f);
-    if (unmet.empty())
-        return requested;
-    std::string why;
-    for (const need n : unmet)
-        why += (why.empty() ? "" : "; ") + std::string(need_text(n));
-    fail(who, "method",
-         method_name(requested) + " (" + std::string(paired::info(requested).label) + ") does not apply to measure " +
-             measure + ": " + why + ". Methods that apply here: " + applicable_text(r, f));
 }
 
 /// The split methods: corrected t, naive t, 5x2cv t and F over the per-split differences.
@@ -454,7 +421,7 @@ comparison compare(const aggregator& agg_a, const aggregator& agg_b, const M& m,
     const measure_facts fb = detail::facts_of(tb);
     f.zero_one_losses = f.zero_one_losses && fb.zero_one_losses;
     f.weighted_add = f.weighted_add && fb.weighted_add;
-    const paired::method_id id = resolve(method.id, rs, f, c.measure);
+    const paired::method_id id = detail::resolve_method(method.id, rs, f, c.measure, who);
     c.method = id;
     c.method_label = std::string(paired::label(id));
 

@@ -538,39 +538,6 @@ inline measure_facts facts_of(const track_base& t) {
     return f;
 }
 
-/// "ci::a (default), ci::b" — the interval methods that apply.
-inline std::string applicable_text(const record_shape& r, const measure_facts& f) {
-    std::string s;
-    const auto d = ci::automatic_choice(r, f);
-    for (const ci::method_id id : ci::applicable(r, f))
-        s += (s.empty() ? "" : ", ") + method_name(id) + (d && *d == id ? " (the default here)" : "");
-    return s.empty() ? std::string("none") : s;
-}
-
-/// The method to compute: the requested one if it applies, ci::automatic's choice, or a
-/// refusal listing why and what applies instead.
-inline ci::method_id resolve_interval(ci::method_id requested, const record_shape& r, const measure_facts& f,
-                                      const std::string& measure, std::string_view who) {
-    if (requested == ci::method_id::automatic) {
-        if (const auto d = ci::automatic_choice(r, f))
-            return *d;
-        fail(who, "method",
-             "no interval method has a valid default for " + std::string(to_string(r.design)) + " (" +
-                 count_text(r.splits, "split") + ") and measure " + measure + ": " + std::string(refusal_reason(r)) +
-                 " (docs/intervals.md, the rule table). Methods that apply, each with its caution: " +
-                 applicable_text(r, f));
-    }
-    const auto unmet = unmet_needs(ci::info(requested).needs, r, f);
-    if (unmet.empty())
-        return requested;
-    std::string why;
-    for (const need n : unmet)
-        why += (why.empty() ? "" : "; ") + std::string(need_text(n));
-    fail(who, "method",
-         method_name(requested) + " (" + std::string(ci::info(requested).label) + ") does not apply to measure " +
-             measure + ": " + why + ". Methods that apply here: " + applicable_text(r, f));
-}
-
 } // namespace detail
 
 template <outer_measure M>
@@ -636,7 +603,7 @@ heldout::estimate aggregator::estimate(const M& m, ci::method method, double lev
             // one class absent: no interval method of this kind applies; the method reports it
         }
     }
-    const ci::method_id id = detail::resolve_interval(method.id, rs, facts, tr.name, who);
+    const ci::method_id id = detail::resolve_method(method.id, rs, facts, tr.name, who);
     e.method = id;
     e.method_label = std::string(ci::info(id).label);
     detail::run_interval(id, in, e);

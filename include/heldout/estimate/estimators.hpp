@@ -46,12 +46,7 @@ struct split_record {
 
 namespace detail {
 
-inline std::string count_text(std::size_t k, std::string_view what) {
-    const bool es = !what.empty() && what.back() == 's';
-    return std::to_string(k) + " " + std::string(what) + (k == 1 ? "" : es ? "es" : "s");
-}
-
-inline std::string method_name(ci::method_id id) { return "ci::" + std::string(ci::info(id).key); }
+inline std::string method_name(ci::method_id id) { return method_text(id); }
 
 /// "only 4 positives ..." when a class behind a DeLong variance is small (delong_small_class,
 /// measured in the coverage study), else nothing. what: "the DeLong interval" / "the DeLong test".

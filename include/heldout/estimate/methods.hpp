@@ -13,6 +13,7 @@
 // lists the reasons a method does not apply, in words.
 #pragma once
 
+#include <heldout/core/error.hpp>
 #include <heldout/core/split.hpp>
 
 #include <array>
@@ -457,5 +458,88 @@ inline std::optional<method_id> automatic_choice(const record_shape& r, const me
 }
 
 } // namespace paired
+
+namespace detail {
+
+/// "3 splits", "1 split", "2 classes".
+inline std::string count_text(std::size_t k, std::string_view what) {
+    const bool es = !what.empty() && what.back() == 's';
+    return std::to_string(k) + " " + std::string(what) + (k == 1 ? "" : es ? "es" : "s");
+}
+
+/// What resolve_method needs of a family of methods: interval methods (ci) or paired
+/// tests (paired).
+template <class Id>
+struct method_family;
+
+template <>
+struct method_family<ci::method_id> {
+    static constexpr std::string_view prefix = "ci::", kind = "interval", page = "docs/intervals.md";
+    static std::optional<ci::method_id> automatic(const record_shape& r, const measure_facts& f) {
+        return ci::automatic_choice(r, f);
+    }
+    static std::vector<ci::method_id> applicable(const record_shape& r, const measure_facts& f) {
+        return ci::applicable(r, f);
+    }
+    static const method_info& info(ci::method_id id) { return ci::info(id); }
+};
+
+template <>
+struct method_family<paired::method_id> {
+    static constexpr std::string_view prefix = "paired::", kind = "paired", page = "docs/compare.md";
+    static std::optional<paired::method_id> automatic(const record_shape& r, const measure_facts& f) {
+        return paired::automatic_choice(r, f);
+    }
+    static std::vector<paired::method_id> applicable(const record_shape& r, const measure_facts& f) {
+        return paired::applicable(r, f);
+    }
+    static const method_info& info(paired::method_id id) { return paired::info(id); }
+};
+
+/// "ci::t", "paired::corrected_t": a method as the user names it.
+template <class Id>
+std::string method_text(Id id) {
+    return std::string(method_family<Id>::prefix) + std::string(method_family<Id>::info(id).key);
+}
+
+/// "ci::a (the default here), ci::b": the methods of the family that apply ("none").
+template <class Id>
+std::string applicable_text(const record_shape& r, const measure_facts& f) {
+    using F = method_family<Id>;
+    std::string s;
+    const auto d = F::automatic(r, f);
+    for (const Id id : F::applicable(r, f))
+        s += (s.empty() ? "" : ", ") + method_text(id) + (d && *d == id ? " (the default here)" : "");
+    return s.empty() ? std::string("none") : s;
+}
+
+/// The method to run, for aggregator::estimate (interval methods) and compare (paired
+/// tests): the requested one if it applies, the family's automatic choice, or a refusal
+/// (input_error from `who`) saying why and listing what applies instead.
+template <class Id>
+Id resolve_method(Id requested, const record_shape& r, const measure_facts& f, const std::string& measure,
+                  std::string_view who) {
+    using F = method_family<Id>;
+    if (requested == Id::automatic) {
+        if (const auto d = F::automatic(r, f))
+            return *d;
+        fail(who, "method",
+             "no " + std::string(F::kind) + " method has a valid default for " + std::string(to_string(r.design)) +
+                 " (" + count_text(r.splits, "split") + ") and measure " + measure + ": " +
+                 std::string(refusal_reason(r)) + " (" + std::string(F::page) +
+                 ", the rule table). Methods that apply, each with its caution: " + applicable_text<Id>(r, f));
+    }
+    const auto unmet = unmet_needs(F::info(requested).needs, r, f);
+    if (unmet.empty())
+        return requested;
+    std::string why;
+    for (const need n : unmet)
+        why += (why.empty() ? "" : "; ") + std::string(need_text(n));
+    fail(who, "method",
+         method_text(requested) + " (" + std::string(F::info(requested).label) + ") does not apply to measure " +
+             measure + ": " + why + ". Methods that apply here: " + applicable_text<Id>(r, f));
+}
+
+} // namespace detail
 
 HELDOUT_NAMESPACE_END
