@@ -223,8 +223,6 @@ inline mcnemar mcnemar_variant(paired::method_id id) {
     }
 }
 
-inline std::string method_name(paired::method_id id) { return method_text(id); }
-
 /// Two aggregators describe the same splits: same count, and per split the same index,
 /// repeat, fold, sizes and test rows. The first difference is named.
 inline void check_same_splits(const aggregator& a, const aggregator& b) {
@@ -331,7 +329,7 @@ void split_methods(comparison& c, paired::method_id id, std::span<const split_re
     if (left_out > 0)
         c.notes.push_back(std::to_string(left_out) + " of " + count_text(recs.size(), "split") +
                           " left out: the measure is undefined there for A or B");
-    const std::string mname = method_name(id);
+    const std::string mname = method_text(id);
     if (id == paired::method_id::five_by_two_t || id == paired::method_id::five_by_two_f) {
         if (left_out > 0)
             fail_undefined(who, mname + " needs all 10 splits, and the measure is undefined on " +

@@ -46,8 +46,6 @@ struct split_record {
 
 namespace detail {
 
-inline std::string method_name(ci::method_id id) { return method_text(id); }
-
 /// "only 4 positives ..." when a class behind a DeLong variance is small (delong_small_class,
 /// measured in the coverage study), else nothing. what: "the DeLong interval" / "the DeLong test".
 inline std::optional<std::string> small_class_caution(std::size_t cases, std::size_t controls, std::string_view what) {
@@ -188,7 +186,7 @@ void estimate_wald(const In& in, estimate& e) {
 template <class In>
 void estimate_resampled_t(const In& in, estimate& e, ci::method_id id) {
     if (in.values.size() < 2)
-        fail_undefined(in.who, "only one split has a defined value; " + method_name(id) + " needs two or more");
+        fail_undefined(in.who, "only one split has a defined value; " + method_text(id) + " needs two or more");
     if (id == ci::method_id::corrected_t) {
         const auto r = corrected_resampled_t(in.values, in.mean_train, in.mean_test, in.level);
         e.se = r.se;
