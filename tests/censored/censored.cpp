@@ -1,7 +1,14 @@
 // Tests of heldout/censored/*.hpp: hand-worked cases, bad input, merge = whole, and the live
 // reference tests/reference/ref_censored.py (R survival's concordance and survfit, base-R IPCW
 // AUC and Brier score).
-#include <heldout/censored.hpp>
+#include <heldout/censored/auc_at.hpp>
+#include <heldout/censored/brier.hpp>
+#include <heldout/censored/censoring_estimate.hpp>
+#include <heldout/censored/column.hpp>
+#include <heldout/censored/concordance_estimate.hpp>
+#include <heldout/censored/harrell_c.hpp>
+#include <heldout/censored/truth.hpp>
+#include <heldout/censored/uno_c.hpp>
 #include <heldout/estimate/aggregator.hpp>
 #include <heldout/plan/kfold.hpp>
 #include <heldout/stream/serialize.hpp>

@@ -1,6 +1,7 @@
 // Tests for heldout/compare/comparison.hpp (and the group umbrella heldout/compare.hpp):
 // paired comparisons of two models from aggregators or from one test set's predictions.
 #include <heldout/compare.hpp>
+#include <heldout/compare/paired.hpp>
 #include <heldout/estimate/evaluate_splits.hpp>
 #include <heldout/measure/auc.hpp>
 #include <heldout/measure/classification_error.hpp>

@@ -1,6 +1,8 @@
 // Tests for heldout/query/judgements.hpp: by_query, and query measures tracked by the
 // aggregator over splits grouped by query (kinds::graded_relevance recorded as its own column).
 #include <heldout/compare/comparison.hpp>
+#include <heldout/core/kinds.hpp>
+#include <heldout/core/traits.hpp>
 #include <heldout/estimate/aggregator.hpp>
 #include <heldout/plan/kfold.hpp>
 #include <heldout/plan/repeated_kfold.hpp>
