@@ -3,6 +3,7 @@
 # targets). With the build's own compiler and flags (g++ in the dev preset, clang++ with
 # libc++ in the libcxx preset: CI runs both):
 #   strict.umbrella      tests/strict/umbrella.cpp: <heldout/heldout.hpp>, an empty main
+#   strict.umbrella_plain_eigen  the same with Eigen through -I, as a user compiling by hand
 #   strict.instantiate   tests/strict/instantiate.cpp: a representative part of heldout
 #                        instantiated, so that warnings inside templates show up; with g++ at
 #                        -O2, since its flow-based warnings (-Wmaybe-uninitialized, ...) need
@@ -18,6 +19,14 @@ foreach(dir IN LISTS strict_eigen Boost_INCLUDE_DIRS)
     # the standard library's #include_next)
     if(NOT dir IN_LIST CMAKE_CXX_IMPLICIT_INCLUDE_DIRECTORIES AND NOT dir STREQUAL "/usr/include")
         list(APPEND strict_includes -isystem ${dir})
+    endif()
+endforeach()
+# The same consumer compiling by hand, with Eigen through -I: Eigen's own warnings must not
+# reach it through our headers either (core/config.hpp, HELDOUT_EXTERNAL_BEGIN).
+set(plain_includes -I${PROJECT_SOURCE_DIR}/include)
+foreach(dir IN LISTS strict_eigen)
+    if(NOT dir IN_LIST CMAKE_CXX_IMPLICIT_INCLUDE_DIRECTORIES AND NOT dir STREQUAL "/usr/include")
+        list(APPEND plain_includes -I${dir})
     endif()
 endforeach()
 set(strict_work ${CMAKE_CURRENT_BINARY_DIR}/strict)
@@ -38,6 +47,14 @@ if(CMAKE_CXX_COMPILER_ID MATCHES "GNU|Clang")
                          -DOUT=${strict_work}/${tu}/${tu}.o -P ${CMAKE_CURRENT_SOURCE_DIR}/strict/check.cmake)
         set_tests_properties(strict.${tu} PROPERTIES LABELS strict TIMEOUT 900)
     endforeach()
+    set(plain_flags ${strict_build_flags} -std=c++20 -Wall -Wextra -Wpedantic -Wconversion -Wsign-conversion
+                    -Wshadow -Wdouble-promotion -Werror ${plain_includes})
+    string(REPLACE ";" "$<SEMICOLON>" plain_flags "${plain_flags}")
+    add_test(NAME strict.umbrella_plain_eigen
+             COMMAND ${CMAKE_COMMAND} -DCXX=${CMAKE_CXX_COMPILER} "-DFLAGS=${plain_flags}" -DMODE=syntax
+                     "-DLAUNCHER=${CMAKE_CXX_COMPILER_LAUNCHER}" -DSRC=${CMAKE_CURRENT_SOURCE_DIR}/strict/umbrella.cpp
+                     -DOUT=${strict_work}/umbrella_plain_eigen/umbrella.o -P ${CMAKE_CURRENT_SOURCE_DIR}/strict/check.cmake)
+    set_tests_properties(strict.umbrella_plain_eigen PROPERTIES LABELS strict TIMEOUT 900)
 endif()
 
 find_program(HELDOUT_STRICT_GXX NAMES g++-12 g++)

@@ -33,11 +33,14 @@
 // (Bonferroni–Dunn), q_alpha = z_{1 - alpha / (2 (k - 1))}.
 #pragma once
 
+#include <heldout/core/config.hpp>
 #include <heldout/core/error.hpp>
 #include <heldout/core/measure.hpp>
 #include <heldout/detail/validate.hpp>
 
+HELDOUT_EXTERNAL_BEGIN
 #include <Eigen/Core>
+HELDOUT_EXTERNAL_END
 #include <boost/math/distributions/chi_squared.hpp>
 #include <boost/math/distributions/fisher_f.hpp>
 #include <boost/math/distributions/normal.hpp>

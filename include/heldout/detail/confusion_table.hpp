@@ -8,7 +8,9 @@
 #include <heldout/detail/labels.hpp>
 #include <heldout/detail/sum.hpp>
 
+HELDOUT_EXTERNAL_BEGIN
 #include <Eigen/Core>
+HELDOUT_EXTERNAL_END
 
 #include <cmath>
 #include <cstddef>

@@ -31,12 +31,15 @@
 #pragma once
 
 #include <heldout/core/capabilities.hpp>
+#include <heldout/core/config.hpp>
 #include <heldout/core/values.hpp>
 #include <heldout/detail/deferred.hpp>
 #include <heldout/detail/isa.hpp>
 #include <heldout/detail/ranks.hpp>
 
+HELDOUT_EXTERNAL_BEGIN
 #include <Eigen/Dense>
+HELDOUT_EXTERNAL_END
 #include <boost/math/distributions/chi_squared.hpp>
 #include <boost/math/distributions/normal.hpp>
 

@@ -7,6 +7,7 @@
 //   double tp = acc(1, 1);  Eigen::MatrixXd table = acc.table();
 #pragma once
 
+#include <heldout/core/config.hpp>
 #include <heldout/core/measure.hpp>
 #include <heldout/detail/cell_count.hpp>
 #include <heldout/detail/confusion_table.hpp>
@@ -16,7 +17,9 @@
 #include <heldout/detail/sum.hpp>
 #include <heldout/detail/validate.hpp>
 
+HELDOUT_EXTERNAL_BEGIN
 #include <Eigen/Core>
+HELDOUT_EXTERNAL_END
 
 #include <algorithm>
 #include <cmath>

@@ -25,11 +25,14 @@
 // outer_measure: heldout::evaluate(confusion_matrix, ...) returns the table itself.
 #pragma once
 
+#include <heldout/core/config.hpp>
 #include <heldout/core/measure.hpp>
 #include <heldout/measure/confusion_accumulator.hpp>
 #include <heldout/measure/table_accumulator.hpp>
 
+HELDOUT_EXTERNAL_BEGIN
 #include <Eigen/Core>
+HELDOUT_EXTERNAL_END
 
 #include <cstddef>
 #include <string>

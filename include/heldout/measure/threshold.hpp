@@ -21,9 +21,12 @@
 // input_error; one class absent -> undefined_error.
 #pragma once
 
+#include <heldout/core/config.hpp>
 #include <heldout/measure/roc_points.hpp>
 
+HELDOUT_EXTERNAL_BEGIN
 #include <Eigen/Core>
+HELDOUT_EXTERNAL_END
 
 #include <optional>
 #include <string>

@@ -25,6 +25,7 @@
 
 #include <heldout/compare/comparison.hpp>
 #include <heldout/compare/friedman.hpp>
+#include <heldout/core/config.hpp>
 #include <heldout/core/error.hpp>
 #include <heldout/estimate/aggregator.hpp>
 #include <heldout/estimate/estimate.hpp>
@@ -36,7 +37,9 @@
 #include <heldout/report/svg.hpp>
 #include <heldout/version.hpp>
 
+HELDOUT_EXTERNAL_BEGIN
 #include <Eigen/Core>
+HELDOUT_EXTERNAL_END
 
 #include <algorithm>
 #include <cmath>
