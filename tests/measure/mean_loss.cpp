@@ -240,9 +240,26 @@ TEST_SUITE("measure/mean_loss") {
                 a.visit_state([&](double x) { sa += x; });
                 b.visit_state([&](double x) { sb += x; });
                 CHECK(sa == sb);
-            } else { // fused multiply-adds in the wide pass: a few ulp per term
+            } else { // fused multiply-adds and 32 lanes in the wide pass: a few ulp per term
                 CHECK(heldout_test::close(b.value(), a.value(), 1e-15, 0));
             }
+        }
+        // Weighted: the wide pass sums terms and weights in 32 lanes (4 vectors) per chunk.
+        std::vector<double> w(y.size());
+        std::uniform_real_distribution<double> u(0, 3);
+        for (double& x : w)
+            x = u(g);
+        auto aw = mse{}.accumulator();
+        aw.add_using(isa::baseline, y, f, w);
+        for (isa clone : {isa::avx2, isa::avx512}) {
+            if (!heldout::detail::isa_supported(clone))
+                continue;
+            auto bw = mse{}.accumulator();
+            bw.add_using(clone, y, f, w);
+            if (clone == isa::avx2)
+                CHECK(aw.value() == bw.value());
+            else
+                CHECK(heldout_test::close(bw.value(), aw.value(), 1e-15, 0));
         }
     }
     TEST_CASE("a failed batch leaves the state untouched; overflow is reported") {

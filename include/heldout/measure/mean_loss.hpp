@@ -210,6 +210,11 @@ public:
     void add_using(detail::isa which, const T& truth, const P& prediction) {
         add_impl(truth, prediction, static_cast<const void*>(nullptr), 0, which);
     }
+    template <value_range T, real_range P, weight_range W>
+    void add_using(detail::isa which, const T& truth, const P& prediction, const W& weights) {
+        auto w = values_of(weights, who(), "weights");
+        add_impl(truth, prediction, w.data(), w.size(), which);
+    }
 
 private:
     static const std::string& who() {
