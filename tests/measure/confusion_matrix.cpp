@@ -1,4 +1,5 @@
 // Tests for heldout/measure/confusion_matrix.hpp: the weighted k x k table of class labels.
+#include <heldout/detail/label_scan.hpp>
 #include <heldout/measure/confusion_matrix.hpp>
 #include <heldout/stream/serialize.hpp>
 
@@ -8,6 +9,7 @@
 #include <Eigen/Dense>
 #include <doctest/doctest.h>
 
+#include <algorithm>
 #include <array>
 #include <cmath>
 #include <cstdint>
@@ -228,6 +230,50 @@ TEST_SUITE("measure/confusion_matrix") {
         run(std::integral_constant<std::size_t, 4>{});
         run(std::integral_constant<std::size_t, 5>{});
         run(std::integral_constant<std::size_t, 8>{});
+    }
+
+    TEST_CASE("each clone of the byte-label scan equals a brute-force count (mismatches, 0/1 sums, largest label)") {
+        using heldout::detail::isa;
+        std::mt19937_64 g(73); // test data only
+        for (isa clone : {isa::baseline, isa::avx2}) {
+            if (!heldout::detail::isa_supported(clone))
+                continue;
+            // block edges of both clones: 255 steps of 32 and of 64 rows, and the scalar tail
+            for (std::size_t n : {0u, 31u, 32u, 63u, 64u, 8160u, 8161u, 16320u, 16383u, 40000u}) {
+                for (unsigned top : {1u, 2u, 200u}) { // 0/1 labels, 3 classes, bytes up to 200
+                    std::vector<std::uint8_t> y(n), f(n);
+                    for (std::size_t i = 0; i < n; ++i) {
+                        y[i] = static_cast<std::uint8_t>(g() % (top + 1));
+                        f[i] = g() % 4 == 0 ? static_cast<std::uint8_t>(g() % (top + 1)) : y[i];
+                    }
+                    std::uint64_t mis = 0, st = 0, sp = 0, stp = 0, mt = 0, mp = 0;
+                    for (std::size_t i = 0; i < n; ++i) {
+                        mis += y[i] != f[i];
+                        st += y[i];
+                        sp += f[i];
+                        stp += y[i] & f[i];
+                        mt = std::max<std::uint64_t>(mt, y[i]);
+                        mp = std::max<std::uint64_t>(mp, f[i]);
+                    }
+                    CAPTURE(n);
+                    CAPTURE(top);
+                    const std::span<const std::uint8_t> ys(y), fs(f);
+                    const auto a = heldout::detail::scan_labels<false>(ys, fs, clone);
+                    CHECK(a.mismatches == mis);
+                    CHECK(a.max_t == mt);
+                    CHECK(a.max_p == mp);
+                    const auto b = heldout::detail::scan_labels<true>(ys, fs, clone);
+                    if (top == 1) { // the sums are kept in byte lanes for 0/1 labels only (the
+                                    // caller uses them only when both largest labels are <= 1)
+                        CHECK(b.sum_t == st);
+                        CHECK(b.sum_p == sp);
+                        CHECK(b.sum_tp == stp);
+                    }
+                    CHECK(b.max_t == mt);
+                    CHECK(b.max_p == mp);
+                }
+            }
+        }
     }
 
     TEST_CASE("k inferred: the table grows with the labels seen, and merges into the larger k") {

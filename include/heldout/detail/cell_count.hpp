@@ -102,7 +102,6 @@ bool count_bytes_small_baseline(const unsigned char* t, const unsigned char* p, 
 }
 
 #if HELDOUT_DETAIL_HAS_AVX2_CLONE
-typedef unsigned char label_u8x32 __attribute__((vector_size(32)));
 template <std::size_t K>
 HELDOUT_DETAIL_TARGET_AVX2 bool count_bytes_small_avx2(const unsigned char* t, const unsigned char* p, std::size_t n,
                                                        std::uint64_t* out) noexcept {
