@@ -137,7 +137,7 @@ label_scan scan_bytes_baseline(const unsigned char* t, const unsigned char* p, s
 
 #if HELDOUT_DETAIL_HAS_AVX2_CLONE
 // Why a clone: on an AMD EPYC (Zen 5, 2026-12-04) the 16-byte kernel ran classification error
-// at 0.80-0.81x and the 2 x 2 table at 0.77-0.79x of bench_labels' plain sum of the same
+// at 0.80-1.00x and the 2 x 2 table at 0.77-0.79x of bench_labels' plain sum of the same
 // bytes; the counts are integers, so every clone gives the same result.
 template <bool Binary>
 HELDOUT_DETAIL_TARGET_AVX2 label_scan scan_bytes_avx2(const unsigned char* t, const unsigned char* p,
