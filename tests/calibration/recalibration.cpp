@@ -4,6 +4,7 @@
 #include <heldout/compare/comparison.hpp>
 #include <heldout/estimate/aggregator.hpp>
 #include <heldout/estimate/tuning.hpp>
+#include <heldout/measure/distance_from_ideal.hpp>
 #include <heldout/stream/early_stopping.hpp>
 
 #include "support/reference.hpp"

@@ -4,6 +4,7 @@
 
 #include <heldout/estimate/aggregator.hpp>
 #include <heldout/estimate/evaluate_splits.hpp>
+#include <heldout/estimate/methods.hpp>
 #include <heldout/measure/auc.hpp>
 #include <heldout/measure/classification_error.hpp>
 #include <heldout/plan/leave_one_out.hpp>

@@ -5,6 +5,7 @@
 #include <heldout/core/random.hpp>
 #include <heldout/measure/average_precision.hpp>
 #include <heldout/measure/partial_auc.hpp>
+#include <heldout/measure/ranked_sample.hpp>
 #include <heldout/measure/roc_points.hpp>
 
 #include "support/measure_checks.hpp"

@@ -1,5 +1,6 @@
 // Tests for heldout/measure/confusion_matrix.hpp: the weighted k x k table of class labels.
 #include <heldout/detail/label_scan.hpp>
+#include <heldout/measure/confusion_accumulator.hpp>
 #include <heldout/measure/confusion_matrix.hpp>
 #include <heldout/stream/serialize.hpp>
 

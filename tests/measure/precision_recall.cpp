@@ -1,5 +1,6 @@
 // Tests for heldout/measure/precision_recall.hpp: precision, recall, specificity, F-beta.
 #include <heldout/measure/precision_recall.hpp>
+#include <heldout/measure/table_accumulator.hpp>
 #include <heldout/stream/serialize.hpp>
 
 #include "support/measure_checks.hpp"

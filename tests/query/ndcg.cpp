@@ -1,4 +1,5 @@
 // Tests for heldout/query/ndcg.hpp: DCG@k and NDCG@k within queries, tie-exact.
+#include <heldout/query/gains.hpp>
 #include <heldout/query/ndcg.hpp>
 
 #include "support/query_brute.hpp"

@@ -9,6 +9,7 @@
 #include <heldout/measure/mean_loss.hpp>
 #include <heldout/measure/median_absolute_error.hpp>
 #include <heldout/measure/multiclass_auc.hpp>
+#include <heldout/measure/thresholded.hpp>
 #include <heldout/stream/serialize.hpp>
 
 #include "support/text.hpp"
