@@ -153,7 +153,9 @@ def rewrite(found, dest, mode):
 
 def cpu_seconds(cmd):
     before = resource.getrusage(resource.RUSAGE_CHILDREN)
-    subprocess.run(cmd, check=True, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
+    run = subprocess.run(cmd, stdout=subprocess.DEVNULL, stderr=subprocess.PIPE, text=True)
+    if run.returncode != 0:  # a rewrite the compiler refuses: say where, rather than time nothing
+        sys.exit(f"include_floor: {' '.join(cmd)} failed:\n{run.stderr[:4000]}")
     after = resource.getrusage(resource.RUSAGE_CHILDREN)
     return (after.ru_utime - before.ru_utime) + (after.ru_stime - before.ru_stime)
 
