@@ -182,10 +182,13 @@ def main():
             print(f"{name}: {n} bytes of non-template function bodies rewritten", file=sys.stderr)
         times = collections.defaultdict(list)
         flags = [args.cxx, "-std=c++20", "-O0", "-w", f"-I{EIGEN}", "-c", "-o", os.devnull]
-        for _ in range(args.runs):
-            times["external"].append(cpu_seconds(flags + [str(work / "external.cpp")]))
-            for name, inc in trees.items():
-                times[name].append(cpu_seconds(flags + [f"-I{inc}", str(work / "umbrella.cpp")]))
+        for r in range(args.runs + 1):  # round 0 warms the caches and is not counted
+            units = [("external", [str(work / "external.cpp")])]
+            units += [(name, [f"-I{inc}", str(work / "umbrella.cpp")]) for name, inc in trees.items()]
+            for name, extra in units:
+                t = cpu_seconds(flags + extra)
+                if r > 0:
+                    times[name].append(t)
         base = statistics.median(times["external"])
         print(f"umbrella include cost with {args.cxx} (-O0, CPU time, median of {args.runs} alternated runs)")
         for name, ts in times.items():
